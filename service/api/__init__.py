@@ -1,0 +1,1 @@
+"""Flask blueprints: thin views (schemas -> physics -> schemas)."""

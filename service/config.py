@@ -1,0 +1,44 @@
+"""Configuration defaults; overridden by PELLET_* environment variables, then a test mapping."""
+
+from __future__ import annotations
+
+import os
+
+ENV_PREFIX = "PELLET_"
+
+DEFAULTS: dict[str, object] = {
+    # Largest accepted request body [bytes] (413 beyond it).
+    "MAX_CONTENT_LENGTH": 16 * 1024 * 1024,
+    # Largest accepted batch [rows] (413 beyond it).
+    "MAX_BATCH_ROWS": 100_000,
+    # Wall-clock budget of one numerical solve [s]; 503 beyond it. Well under gunicorn's timeout.
+    "SOLVER_TIME_BUDGET": 5.0,
+    # Version string reported by /version.
+    "SERVICE_VERSION": "0.1.0",
+}
+
+
+def _coerce(raw: str, like: object):
+    if isinstance(like, bool):
+        return raw.strip().lower() in ("1", "true", "yes", "on")
+    if isinstance(like, int):
+        return int(raw)
+    if isinstance(like, float):
+        return float(raw)
+    return raw
+
+
+def load_config(test_config: dict | None = None, environ=None) -> dict:
+    """Defaults, then ``PELLET_<NAME>`` environment variables, then ``test_config``."""
+    environ = os.environ if environ is None else environ
+    config = dict(DEFAULTS)
+    for name, default in DEFAULTS.items():
+        raw = environ.get(ENV_PREFIX + name)
+        if raw is not None:
+            try:
+                config[name] = _coerce(raw, default)
+            except ValueError as exc:
+                raise ValueError(f"{ENV_PREFIX}{name}={raw!r}: {exc}") from None
+    if test_config:
+        config.update(test_config)
+    return config

@@ -1,0 +1,52 @@
+"""Reading request bodies and rendering responses (JSON via orjson; CSV and text later)."""
+
+from __future__ import annotations
+
+import json
+
+import orjson
+from flask import Response, request
+
+from .errors import ApiProblem
+
+JSON_OPTIONS = orjson.OPT_SERIALIZE_NUMPY
+
+
+def json_response(payload, status: int = 200) -> Response:
+    """orjson-encoded JSON response (non-finite floats must never reach here)."""
+    return Response(orjson.dumps(payload, option=JSON_OPTIONS), status=status,
+                    mimetype="application/json")
+
+
+def _is_json_media_type(mimetype: str) -> bool:
+    return mimetype == "application/json" or (
+        mimetype.startswith("application/") and mimetype.endswith("+json")
+    )
+
+
+def read_json_body():
+    """The request body as JSON (400 if malformed, 415 if not JSON).
+
+    orjson parses the common case. A body it rejects is read again by the
+    standard library, which accepts the non-standard NaN / Infinity literals and
+    numbers beyond the double range: they then reach the schemas and become a 422
+    naming the field instead of a bare 400.
+    """
+    if not _is_json_media_type(request.mimetype):
+        got = request.mimetype or "none"
+        raise ApiProblem(
+            "unsupported-media-type",
+            f"Send the body as application/json (Content-Type was {got}).",
+        )
+    raw = request.get_data(cache=True)
+    if not raw.strip():
+        raise ApiProblem("malformed-body", "The request body is empty; send a JSON object.")
+    try:
+        return orjson.loads(raw)
+    except orjson.JSONDecodeError as first:
+        try:
+            return json.loads(raw)
+        except (ValueError, RecursionError, UnicodeDecodeError):
+            raise ApiProblem(
+                "malformed-body", f"The request body is not valid JSON: {first}."
+            ) from None

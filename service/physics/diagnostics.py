@@ -1,0 +1,65 @@
+"""Diagnostics returned with results: the one table of warning codes.
+
+A diagnostic is data (code, severity, message, field), never ``warnings.warn``.
+Every code the service can emit is listed in ``WARNING_CODES`` with its severity
+and meaning; the OpenAPI file lists the same codes (a test keeps them equal).
+
+Severities: ``info`` (worth knowing), ``warning`` (the number needs care),
+``caution`` (safety-relevant: large temperature rise, several steady states,
+eta > 1; the message defers to plant data, codes and licensed practice).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+SEVERITIES = ("info", "warning", "caution")
+
+SAFETY_NOTE = (
+    "This is a screening estimate for engineering judgement; design and operating decisions "
+    "follow plant data, applicable codes and licensed engineering practice."
+)
+
+# code -> (severity, meaning)
+WARNING_CODES: dict[str, tuple[str, str]] = {
+    "STRONG_PORE_DIFFUSION": (
+        "warning",
+        "The generalized modulus is in the strong pore-diffusion regime: the observed rate is "
+        "limited by diffusion inside the pellet, and rate data measured here show falsified "
+        "kinetics (about half the true activation energy, apparent order (n+1)/2).",
+    ),
+    "TRANSITION_REGIME": (
+        "info",
+        "The generalized modulus lies between the kinetic and diffusion regimes: neither "
+        "asymptote applies and the effectiveness factor depends on shape and rate law.",
+    ),
+    "INPUT_OUTSIDE_COMMON_RANGE": (
+        "info",
+        "An input lies outside the range commonly met for catalyst pellets; check its value "
+        "and unit.",
+    ),
+}
+
+
+@dataclass(frozen=True)
+class Diagnostic:
+    """One warning attached to a result."""
+
+    code: str
+    severity: str
+    message: str
+    field: str | None = None
+
+    def as_dict(self) -> dict:
+        out = {"code": self.code, "severity": self.severity, "message": self.message}
+        if self.field is not None:
+            out["field"] = self.field
+        return out
+
+
+def diagnostic(code: str, message: str, field: str | None = None) -> Diagnostic:
+    """Build a diagnostic of a registered code (its severity comes from the table)."""
+    severity, _meaning = WARNING_CODES[code]
+    if severity == "caution" and SAFETY_NOTE not in message:
+        message = f"{message} {SAFETY_NOTE}"
+    return Diagnostic(code, severity, message, field)

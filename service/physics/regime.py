@@ -1,0 +1,29 @@
+"""Regime of a case from its generalized modulus, and the thresholds used.
+
+Thresholds (common practice, on the generalized modulus Phi based on V_p/S_p):
+- kinetic, Phi < 0.3: the effectiveness factor of every ideal shape is above
+  about 0.95 for first order (sphere 0.949, cylinder 0.958, slab 0.971 at 0.3);
+- diffusion, Phi > 3: eta is within about 11 % of the asymptote 1/Phi for every
+  ideal shape (slab 0.5 %, sphere 11 % at Phi = 3);
+- transition in between.
+The numbers quoted are evaluated from the closed forms in ``closed_form``; the
+choice of 0.3 and 3 is common practice (e.g. the asymptotes drawn in
+Froment, Bischoff & De Wilde, Chemical Reactor Analysis and Design, 3rd ed.,
+2011, ch. 3), not a published rule.
+"""
+
+from __future__ import annotations
+
+KINETIC_LIMIT = 0.3
+DIFFUSION_LIMIT = 3.0
+
+REGIMES = ("kinetic", "transition", "diffusion")
+
+
+def regime_of(generalized_modulus: float) -> str:
+    """'kinetic', 'transition' or 'diffusion' for a generalized modulus [-]."""
+    if generalized_modulus < KINETIC_LIMIT:
+        return "kinetic"
+    if generalized_modulus > DIFFUSION_LIMIT:
+        return "diffusion"
+    return "transition"

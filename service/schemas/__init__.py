@@ -1,0 +1,1 @@
+"""marshmallow schemas: request validation into plain SI dataclasses, response shaping."""

@@ -1,0 +1,104 @@
+"""The one table of request fields: SI unit, range and inclusiveness, default.
+
+Both the marshmallow schemas and the columnar (batch) validator read this table,
+and a test checks the OpenAPI file against it, so the three cannot disagree.
+Keys are the dotted request names (``pellet.radius``).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class FieldRule:
+    """How one request field is read and checked.
+
+    unit : SI unit a bare number is taken in ("" for dimensionless, None when the
+        unit depends on other fields, e.g. a rate constant on the order).
+    minimum, maximum : bounds in SI (None: unbounded).
+    exclusive_minimum, exclusive_maximum : whether the bound itself is excluded.
+    kind : "quantity" (number, "value unit" string or {value, unit}), "number"
+        (plain number), "integer" or "choice".
+    """
+
+    unit: str | None
+    description: str
+    minimum: float | None = None
+    exclusive_minimum: bool = False
+    maximum: float | None = None
+    exclusive_maximum: bool = False
+    kind: str = "quantity"
+    default: object = None
+    choices: tuple = ()
+
+    def range_error(self, value: float) -> str | None:
+        """A message when ``value`` breaks the range, else None."""
+        unit = f" {self.unit}" if self.unit else ""
+        if self.minimum is not None:
+            if value < self.minimum or (self.exclusive_minimum and value == self.minimum):
+                op = ">" if self.exclusive_minimum else ">="
+                return f"must be {op} {self.minimum:g}{unit}; got {value:.6g}{unit}"
+        if self.maximum is not None:
+            if value > self.maximum or (self.exclusive_maximum and value == self.maximum):
+                op = "<" if self.exclusive_maximum else "<="
+                return f"must be {op} {self.maximum:g}{unit}; got {value:.6g}{unit}"
+        return None
+
+
+def _positive(unit: str, description: str) -> FieldRule:
+    return FieldRule(unit, description, minimum=0.0, exclusive_minimum=True)
+
+
+FIELD_RULES: dict[str, FieldRule] = {
+    "pellet.shape": FieldRule(None, "Pellet shape.", kind="choice"),
+    "pellet.radius": _positive("m", "Radius of a sphere or cylinder."),
+    "pellet.thickness": _positive("m", "Slab thickness (the whole layer)."),
+    "pellet.exposed_faces": FieldRule(
+        None,
+        "Slab faces open to the fluid: 2 (pellet plate) or 1 (layer on an impermeable wall).",
+        kind="choice",
+        default=2,
+        choices=(1, 2),
+    ),
+    "kinetics.model": FieldRule(None, "Rate law.", kind="choice"),
+    "kinetics.order": FieldRule(
+        "", "Reaction order n of r = k c^n.", minimum=0.0, maximum=10.0, kind="number", default=1.0
+    ),
+    "kinetics.rate_constant": FieldRule(
+        None,
+        "Rate constant k; its SI unit follows the order: (mol/m^3)^(1-n)/s per pellet volume, "
+        "(mol/m^3)^(1-n) m^3/(kg s) per catalyst mass.",
+        minimum=0.0,
+    ),
+    "kinetics.rate_basis": FieldRule(
+        None,
+        "Basis of the rate constant: per pellet volume, or per catalyst mass (then "
+        "pellet_density converts it).",
+        kind="choice",
+        default="pellet_volume",
+        choices=("pellet_volume", "catalyst_mass"),
+    ),
+    "kinetics.pellet_density": _positive(
+        "kg/m^3", "Pellet (particle) density, needed with rate_basis catalyst_mass."
+    ),
+    "transport.effective_diffusivity": _positive(
+        "m^2/s", "Effective diffusivity D_e of the reactant inside the pellet."
+    ),
+    "surface.concentration": FieldRule(
+        "mol/m^3", "Reactant concentration at the pellet surface.", minimum=0.0
+    ),
+    "options.profile_points": FieldRule(
+        None,
+        "Number of evenly spaced profile positions from centre to surface (0: no profile).",
+        minimum=0,
+        maximum=2001,
+        kind="integer",
+        default=0,
+    ),
+}
+
+
+def check_finite(value: float) -> str | None:
+    return None if math.isfinite(value) else "must be a finite number"

@@ -1,0 +1,39 @@
+"""Quantity parsing and conversion (pint at the edge, cached)."""
+
+import pytest
+
+from service import units
+
+
+@pytest.mark.parametrize(
+    "raw, si_unit, expected",
+    [
+        ("1.5 mm", "m", 1.5e-3),
+        ("1.5mm", "m", 1.5e-3),
+        ({"value": 1.5, "unit": "mm"}, "m", 1.5e-3),
+        (1.5e-3, "m", 1.5e-3),
+        ("12 1/s", "1/s", 12.0),
+        ("12/s", "1/s", 12.0),
+        ("1.2e-6 m^2/s", "m^2/s", 1.2e-6),
+        ("1.2 cm^2/s", "m^2/s", 1.2e-4),
+        ("40 mol/m^3", "mol/m^3", 40.0),
+        ("350 degC", "K", 623.15),  # offset unit
+        ("2 mm\u00b2/s", "m^2/s", 2e-6),
+    ],
+)
+def test_parse_quantity(raw, si_unit, expected):
+    assert units.parse_quantity(raw, si_unit) == pytest.approx(expected, rel=1e-14)
+
+
+@pytest.mark.parametrize("raw", ["1.5 kg", "1 degC", "abc", "1.5 no_such_unit", True, None, [1]])
+def test_bad_quantities(raw):
+    with pytest.raises(units.QuantityError):
+        units.parse_quantity(raw, "m")
+
+
+def test_unit_conversion_is_cached():
+    units._conversion.cache_clear()
+    units.parse_quantity("3 mm", "m")
+    units.parse_quantity("4 mm", "m")
+    info = units._conversion.cache_info()
+    assert info.misses == 1 and info.hits == 1

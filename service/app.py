@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from flask import Flask
 
-from . import errors
+from . import errors, request_ids
 from .config import load_config
 
 
@@ -15,8 +15,11 @@ def create_app(config: dict | None = None) -> Flask:
     app.json.sort_keys = False
     errors.init_app(app)
 
-    from .api import effectiveness, meta
+    from .api import batch, contract, effectiveness, meta
 
     app.register_blueprint(meta.bp)
+    app.register_blueprint(contract.bp)
     app.register_blueprint(effectiveness.bp)
+    app.register_blueprint(batch.bp)
+    request_ids.init_app(app)
     return app

@@ -8,7 +8,7 @@ ENV_PREFIX = "PELLET_"
 
 DEFAULTS: dict[str, object] = {
     # Largest accepted request body [bytes] (413 beyond it).
-    "MAX_CONTENT_LENGTH": 16 * 1024 * 1024,
+    "MAX_CONTENT_LENGTH": 64 * 1024 * 1024,
     # Largest accepted batch [rows] (413 beyond it).
     "MAX_BATCH_ROWS": 100_000,
     # Wall-clock budget of one numerical solve [s]; 503 beyond it. Well under gunicorn's timeout.

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import csv
+import io
 import json
 
 import orjson
@@ -50,3 +52,29 @@ def read_json_body():
             raise ApiProblem(
                 "malformed-body", f"The request body is not valid JSON: {first}."
             ) from None
+
+
+def _cell(value) -> str:
+    if isinstance(value, float):
+        return repr(value)
+    return "" if value is None else str(value)
+
+
+def csv_text(rows) -> str:
+    """RFC 4180 CSV (CRLF line ends) from rows of cells; floats at full precision."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\r\n")
+    for row in rows:
+        writer.writerow([_cell(v) for v in row])
+    return buffer.getvalue()
+
+
+def csv_response(rows, status: int = 200) -> Response:
+    return Response(csv_text(rows), status=status, mimetype="text/csv",
+                    headers={"Content-Type": "text/csv; charset=utf-8; header=present"})
+
+
+def text_response(value, status: int = 200) -> Response:
+    """A bare value as text/plain (for a spreadsheet's web-query cell)."""
+    return Response(_cell(value), status=status,
+                    headers={"Content-Type": "text/plain; charset=utf-8"})

@@ -16,6 +16,7 @@ import math
 import re
 from functools import lru_cache
 
+import numpy as np
 import pint
 
 _REGISTRY = pint.UnitRegistry()
@@ -62,12 +63,18 @@ def _normalise_unit(unit: str) -> str:
     return unit
 
 
-def to_si(value: float, unit: str, si_unit: str) -> float:
-    """Convert ``value`` in ``unit`` to ``si_unit``; QuantityError on a bad unit or dimension."""
+@lru_cache(maxsize=4096)
+def conversion(unit: str, si_unit: str) -> tuple[float, float]:
+    """(scale, offset) such that value_SI = offset + scale * value (cached per unit string)."""
     unit = _normalise_unit(unit)
     if len(unit) > MAX_UNIT_LENGTH:
         raise QuantityError(f"unit string longer than {MAX_UNIT_LENGTH} characters")
-    scale, offset = _conversion(unit, si_unit)
+    return _conversion(unit, si_unit)
+
+
+def to_si(value: float, unit: str, si_unit: str) -> float:
+    """Convert ``value`` in ``unit`` to ``si_unit``; QuantityError on a bad unit or dimension."""
+    scale, offset = conversion(unit, si_unit)
     return offset + scale * value
 
 
@@ -120,3 +127,54 @@ def is_valid_unit(unit: str) -> bool:
     except Exception:
         return False
     return True
+
+
+def parse_quantities(values: list, si_unit: str) -> tuple[np.ndarray, np.ndarray]:
+    """A column of raw request values -> (SI floats, mask of values that failed).
+
+    The column form of ``parse_quantity``: the same number pattern, the same cached
+    conversion and the same arithmetic (offset + scale * value), so a value gives
+    the identical float either way. Failed entries are NaN in the result.
+    """
+    n = len(values)
+    kinds = set(map(type, values))
+    if kinds <= {float, int}:
+        out = np.array(values, dtype=float)
+        return out, ~np.isfinite(out)
+    out = np.empty(n)
+    bad = np.zeros(n, dtype=bool)
+    local: dict[str, tuple[float, float] | None] = {}
+    match = _NUMBER.match
+    for i, raw in enumerate(values):
+        kind = type(raw)
+        if kind is str and len(raw) <= MAX_UNIT_LENGTH + 40:
+            m = match(raw)
+            if m is None:
+                bad[i] = True
+                continue
+            unit = m.group(2)
+            number = float(m.group(1))
+            if not unit:
+                out[i] = number
+                continue
+            factors = local.get(unit, False)
+            if factors is False:
+                try:
+                    factors = conversion(unit, si_unit)
+                except QuantityError:
+                    factors = None
+                local[unit] = factors
+            if factors is None:
+                bad[i] = True
+                continue
+            out[i] = factors[1] + factors[0] * number
+        elif kind is float or kind is int:
+            out[i] = raw
+        else:
+            try:
+                out[i] = parse_quantity(raw, si_unit)
+            except QuantityError:
+                bad[i] = True
+    bad |= ~np.isfinite(out) & ~bad
+    out[bad] = np.nan
+    return out, bad

@@ -32,8 +32,27 @@ def test_bad_quantities(raw):
 
 
 def test_unit_conversion_is_cached():
+    units.conversion.cache_clear()
     units._conversion.cache_clear()
     units.parse_quantity("3 mm", "m")
     units.parse_quantity("4 mm", "m")
-    info = units._conversion.cache_info()
-    assert info.misses == 1 and info.hits == 1
+    units.parse_quantities(["5 mm", "6 mm"], "m")
+    # pint is asked once for "mm"; every later use is a dictionary look-up
+    assert units._conversion.cache_info().misses == 1
+    assert units.conversion.cache_info().misses == 1
+
+
+@pytest.mark.parametrize(
+    "raw",
+    ["1.5 mm", "1.5mm", "2 cm", "350 degC", "1e400 m", "abc", "1.5 kg", 1.5, 2, True, None,
+     {"value": 3, "unit": "mm"}, {"value": 3}, "-0.5 m", "1.5", "nan mm", "1_000 m"],
+)
+def test_column_parser_agrees_with_single_parser(raw):
+    si_unit = "K" if raw == "350 degC" else "m"
+    values, bad = units.parse_quantities([raw], si_unit)
+    try:
+        expected = units.parse_quantity(raw, si_unit)
+    except units.QuantityError:
+        assert bad[0]
+    else:
+        assert not bad[0] and values[0] == expected

@@ -11,7 +11,7 @@ from marshmallow import RAISE, Schema, ValidationError, fields, post_load, valid
 from .. import units
 from ..physics.case import Case
 from ..physics.geometry import SHAPES
-from .fields import Choice, Integer, Number, Quantity, RawQuantity, Tagged
+from .fields import Choice, Integer, Number, Quantity, RawQuantity, Tagged, field_for
 from .rules import FIELD_RULES
 
 RATE_BASES = FIELD_RULES["kinetics.rate_basis"].choices
@@ -26,9 +26,9 @@ def _shape_schema(name: str) -> Schema:
     spec = SHAPES[name]
     declared = {"shape": fields.String(required=True)}
     for dimension in spec.dimensions:
-        declared[dimension] = Quantity(f"pellet.{dimension}", required=True)
+        declared[dimension] = field_for(f"pellet.{dimension}", required=True)
     for option in spec.optional:
-        declared[option] = Choice(f"pellet.{option}")
+        declared[option] = field_for(f"pellet.{option}")
 
     def make(self, data, **kwargs):
         shape = data.pop("shape")

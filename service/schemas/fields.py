@@ -115,3 +115,10 @@ class Tagged(fields.Field):
         if schema is None:
             raise ValidationError({self.key: ["must be one of " + ", ".join(self.registry)]})
         return schema.load(value)
+
+
+def field_for(rule_name: str, required: bool = False) -> fields.Field:
+    """The marshmallow field for a rule of the table, by its kind."""
+    rule = FIELD_RULES[rule_name]
+    factory = {"quantity": Quantity, "number": Number, "integer": Integer, "choice": Choice}[rule.kind]
+    return factory(rule_name, required=required)

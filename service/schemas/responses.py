@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from ..physics.case import Case
 from ..physics.effectiveness import EffectivenessResult
 from ..physics.geometry import SHAPES
@@ -78,25 +80,42 @@ def echo_inputs(case: Case) -> dict:
     }
 
 
-def effectiveness_payload(case: Case, result: EffectivenessResult) -> dict:
-    """The JSON body of POST /v1/effectiveness."""
+def core_fields(
+    eta, phi, thiele_length, generalized, characteristic_length, observed_rate,
+    regime, method, shape_exponent, volume, area, warnings,
+) -> dict:
+    """The result fields shared by the single and batch answers (one place for their shape)."""
     out = {
-        "effectiveness_factor": _finite(result.effectiveness_factor),
-        "thiele_modulus": _finite(result.thiele_modulus),
-        "thiele_length": quantity(result.thiele_length, OUTPUT_UNITS["thiele_length"]),
-        "generalized_modulus": _finite(result.generalized_modulus),
-        "characteristic_length": quantity(
-            result.characteristic_length, OUTPUT_UNITS["characteristic_length"]
-        ),
-        "observed_rate": quantity(result.observed_rate, OUTPUT_UNITS["observed_rate"]),
-        "regime": result.regime,
-        "method": result.method,
-        "shape_exponent": SHAPES[case.shape].shape_exponent,
+        "effectiveness_factor": _finite(eta),
+        "thiele_modulus": _finite(phi),
+        "thiele_length": quantity(thiele_length, "m"),
+        "generalized_modulus": _finite(generalized),
+        "characteristic_length": quantity(characteristic_length, "m"),
+        "observed_rate": quantity(observed_rate, OUTPUT_UNITS["observed_rate"]),
+        "regime": regime,
+        "method": method,
+        "shape_exponent": shape_exponent,
     }
+    if volume is not None:
+        out["pellet_volume"] = quantity(volume, OUTPUT_UNITS["pellet_volume"])
+        out["external_area"] = quantity(area, OUTPUT_UNITS["external_area"])
+    out["warnings"] = [_warning(d) for d in warnings]
+    return out
+
+
+def result_fields(case: Case, result: EffectivenessResult) -> dict:
     geometry = result.geometry
-    if geometry.volume is not None:
-        out["pellet_volume"] = quantity(geometry.volume, OUTPUT_UNITS["pellet_volume"])
-        out["external_area"] = quantity(geometry.external_area, OUTPUT_UNITS["external_area"])
+    return core_fields(
+        result.effectiveness_factor, result.thiele_modulus, result.thiele_length,
+        result.generalized_modulus, result.characteristic_length, result.observed_rate,
+        result.regime, result.method, SHAPES[case.shape].shape_exponent,
+        geometry.volume, geometry.external_area, result.diagnostics,
+    )
+
+
+def effectiveness_payload(case: Case, result: EffectivenessResult) -> dict:
+    """The JSON body of /v1/effectiveness."""
+    out = result_fields(case, result)
     if result.profile_position is not None:
         out["profile"] = {
             "position": {
@@ -108,9 +127,74 @@ def effectiveness_payload(case: Case, result: EffectivenessResult) -> dict:
                 "unit": OUTPUT_UNITS["profile.concentration"],
             },
         }
-    out["warnings"] = [_warning(d) for d in result.diagnostics]
     out["inputs"] = echo_inputs(case)
     return out
+
+
+def column_rows(group, columns) -> list[tuple[int, dict]]:
+    """(row index, result fields) for every row of a fast-path group.
+
+    The same fields as ``core_fields`` (a test compares them), built inline
+    because this loop runs once per row of 100k-row batches.
+    """
+    arrays = [
+        columns.effectiveness_factor, columns.thiele_modulus, columns.thiele_length,
+        columns.generalized_modulus, columns.characteristic_length, columns.observed_rate,
+    ]
+    if columns.volume is not None:
+        arrays += [columns.volume, columns.external_area]
+    if not all(np.all(np.isfinite(a)) for a in arrays):
+        raise ValueError("non-finite result")  # guard: never a non-finite number out
+    exponent = SHAPES[group.shape].shape_exponent
+    rate_unit = OUTPUT_UNITS["observed_rate"]
+    rows = []
+    for index, eta, phi, length, gen, lc, rate, regime, diags in zip(
+        group.rows.tolist(),
+        columns.effectiveness_factor.tolist(),
+        columns.thiele_modulus.tolist(),
+        columns.thiele_length.tolist(),
+        columns.generalized_modulus.tolist(),
+        columns.characteristic_length.tolist(),
+        columns.observed_rate.tolist(),
+        columns.regime,
+        columns.diagnostics,
+    ):
+        rows.append((index, {
+            "effectiveness_factor": eta,
+            "thiele_modulus": phi,
+            "thiele_length": {"value": length, "unit": "m"},
+            "generalized_modulus": gen,
+            "characteristic_length": {"value": lc, "unit": "m"},
+            "observed_rate": {"value": rate, "unit": rate_unit},
+            "regime": regime,
+            "method": "closed_form",
+            "shape_exponent": exponent,
+            "warnings": [_warning(d) for d in diags] if diags else [],
+        }))
+    if columns.volume is not None:
+        volume_unit, area_unit = OUTPUT_UNITS["pellet_volume"], OUTPUT_UNITS["external_area"]
+        for (_index, row), v, a in zip(rows, columns.volume.tolist(),
+                                       columns.external_area.tolist()):
+            warnings = row.pop("warnings")
+            row["pellet_volume"] = {"value": v, "unit": volume_unit}
+            row["external_area"] = {"value": a, "unit": area_unit}
+            row["warnings"] = warnings
+    return rows
+
+
+def scalar_row(result: EffectivenessResult) -> dict:
+    """The scalar results of one case as a flat row (SI numbers, warnings as codes)."""
+    return {
+        "effectiveness_factor": _finite(result.effectiveness_factor),
+        "thiele_modulus": _finite(result.thiele_modulus),
+        "thiele_length": _finite(result.thiele_length),
+        "generalized_modulus": _finite(result.generalized_modulus),
+        "characteristic_length": _finite(result.characteristic_length),
+        "observed_rate": _finite(result.observed_rate),
+        "regime": result.regime,
+        "method": result.method,
+        "warnings": ";".join(d.code for d in result.diagnostics),
+    }
 
 
 def _warning(diag) -> dict:

@@ -62,6 +62,17 @@ FIELD_RULES: dict[str, FieldRule] = {
         default=2,
         choices=(1, 2),
     ),
+    "pellet.outer_radius": _positive("m", "Outer radius of a ring (hollow cylinder)."),
+    "pellet.inner_radius": _positive("m", "Inner (bore) radius of a ring; less than outer_radius."),
+    "pellet.length": _positive(
+        "m", "Pellet length of a finite cylinder, ring or extrudate (omit for infinite length)."
+    ),
+    "pellet.lobes": FieldRule(
+        None, "Number of lobes of a multi-lobed extrudate.", kind="choice", choices=(3, 4)
+    ),
+    "pellet.lobe_diameter": _positive("m", "Diameter of one lobe of an extrudate."),
+    "pellet.volume": _positive("m^3", "Pellet volume (custom shape)."),
+    "pellet.external_area": _positive("m^2", "Permeable external area (custom shape)."),
     "kinetics.model": FieldRule(None, "Rate law.", kind="choice"),
     "kinetics.order": FieldRule(
         "", "Reaction order n of r = k c^n.", minimum=0.0, maximum=10.0, kind="number", default=1.0

@@ -1,0 +1,89 @@
+"""Batch throughput: 100k-row JSON and CSV batches in-process, and the single/batch cost ratio.
+
+Run: .venv/bin/python bench/batch.py   (prints its figures in one run; not a timed test)
+"""
+
+from __future__ import annotations
+
+import random
+import statistics
+import time
+
+import orjson
+
+from service import create_app
+
+ROWS = 100_000
+
+
+def make_cases(n: int, seed: int = 7) -> list[dict]:
+    """Invented screening grid for the Kestrel Ridge pilot plant (KR-7 catalyst)."""
+    rng = random.Random(seed)
+    shapes = [("sphere", "radius"), ("cylinder", "radius"), ("slab", "thickness")]
+    cases = []
+    for _ in range(n):
+        shape, dim = rng.choice(shapes)
+        cases.append({
+            "pellet": {"shape": shape, dim: f"{rng.uniform(0.2, 5.0):.4f} mm"},
+            "kinetics": {"model": "power_law", "order": 1,
+                         "rate_constant": f"{rng.uniform(0.5, 50):.3f} 1/s"},
+            "transport": {"effective_diffusivity": rng.uniform(2e-7, 2e-6)},
+            "surface": {"concentration": rng.uniform(5, 80)},
+        })
+    return cases
+
+
+def make_csv(cases: list[dict]) -> bytes:
+    lines = ["pellet.shape,pellet.radius [mm],pellet.thickness [mm],kinetics.model,"
+             "kinetics.rate_constant [1/s],transport.effective_diffusivity [m^2/s],"
+             "surface.concentration [mol/m^3]"]
+    for c in cases:
+        p = c["pellet"]
+        radius = p.get("radius", "").replace(" mm", "")
+        thickness = p.get("thickness", "").replace(" mm", "")
+        k = c["kinetics"]["rate_constant"].replace(" 1/s", "")
+        lines.append(f"{p['shape']},{radius},{thickness},power_law,{k},"
+                     f"{c['transport']['effective_diffusivity']!r},{c['surface']['concentration']!r}")
+    return ("\n".join(lines) + "\n").encode()
+
+
+def timed(fn) -> float:
+    start = time.perf_counter()
+    fn()
+    return time.perf_counter() - start
+
+
+def main() -> None:
+    client = create_app({"TESTING": True}).test_client()
+    cases = make_cases(ROWS)
+    json_body = orjson.dumps({"cases": cases})
+    csv_body = make_csv(cases)
+
+    def post_json():
+        r = client.post("/v1/effectiveness/batch", data=json_body,
+                        headers={"Content-Type": "application/json"})
+        assert r.status_code == 200 and r.get_json()["succeeded"] == ROWS
+
+    def post_csv():
+        r = client.post("/v1/effectiveness/batch", data=csv_body,
+                        headers={"Content-Type": "text/csv", "Accept": "text/csv"})
+        assert r.status_code == 200 and r.get_data().count(b"\n") == ROWS + 1
+
+    post_json()  # warm caches (unit conversions, imports)
+    t_json = min(timed(post_json) for _ in range(2))
+    t_csv = min(timed(post_csv) for _ in range(2))
+
+    single = cases[0]
+    samples = []
+    for i in range(2000):
+        samples.append(timed(lambda: client.post("/v1/effectiveness", json=single)))
+    t_single = statistics.median(samples[200:])
+    per_case_batch = t_json / ROWS
+    print(f"JSON batch, {ROWS} rows: {t_json:.3f} s -> {ROWS / t_json:,.0f} cases/s")
+    print(f"CSV batch,  {ROWS} rows: {t_csv:.3f} s -> {ROWS / t_csv:,.0f} cases/s")
+    print(f"single POST median:      {t_single * 1e3:.3f} ms")
+    print(f"per-case cost ratio single/batch (JSON): {t_single / per_case_batch:.0f}")
+
+
+if __name__ == "__main__":
+    main()

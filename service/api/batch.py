@@ -1,0 +1,116 @@
+"""POST /v1/effectiveness/batch: many cases (JSON list or CSV table); one bad row never fails the others."""
+
+from __future__ import annotations
+
+from flask import Blueprint, current_app, request
+from marshmallow import ValidationError
+
+from ..errors import ApiProblem, validation_problem
+from ..formats import csv_response, json_response, read_json_body
+from ..physics.effectiveness import evaluate, evaluate_first_order_columns
+from ..physics.errors import PhysicsInputError, SolverBudgetExceeded
+from ..schemas.case import CASE_SCHEMA, flatten_errors
+from ..schemas.columnar import fast_path
+from ..schemas.csv_rows import CsvProblem, read_csv_cases
+from ..schemas.responses import OUTPUT_UNITS, column_rows, result_fields
+
+bp = Blueprint("batch", __name__, url_prefix="/v1")
+
+CSV_COLUMNS = (
+    "effectiveness_factor", "thiele_modulus", "thiele_length", "generalized_modulus",
+    "characteristic_length", "observed_rate", "regime", "method",
+)
+
+
+def _read_cases() -> list:
+    limit = current_app.config["MAX_BATCH_ROWS"]
+    if request.mimetype in ("text/csv", "application/csv"):
+        try:
+            cases, count = read_csv_cases(request.get_data(cache=False), limit)
+        except CsvProblem as exc:
+            if exc.malformed:
+                raise ApiProblem("malformed-body", str(exc)) from None
+            raise validation_problem([{"field": exc.field, "message": str(exc)}]) from None
+    else:
+        body = read_json_body()
+        if not isinstance(body, dict) or set(body) != {"cases"} or not isinstance(body["cases"], list):
+            raise validation_problem(
+                [{"field": "cases", "message": 'the body must be {"cases": [<case>, ...]}'}]
+            )
+        cases = body["cases"]
+        count = len(cases)
+    if count > limit:
+        raise ApiProblem("too-large", f"The batch has {count} rows; the limit is {limit}.")
+    return cases
+
+
+def _slow_row(raw) -> dict:
+    """One row through the case schema and the general evaluation."""
+    if not isinstance(raw, dict):
+        message = raw if isinstance(raw, str) else f"expected an object, got {type(raw).__name__}"
+        return {"status": 422, "errors": [{"field": "(row)", "message": message}]}
+    try:
+        case = CASE_SCHEMA.load(raw)
+        return {"status": 200, **result_fields(case, evaluate(case))}
+    except ValidationError as exc:
+        return {"status": 422, "errors": flatten_errors(exc.messages)}
+    except PhysicsInputError as exc:
+        return {"status": 422, "errors": [{"field": exc.argument, "message": exc.reason}]}
+    except SolverBudgetExceeded as exc:
+        return {"status": 503, "errors": [{"field": "(row)", "message": str(exc)}]}
+
+
+def run_batch(cases: list) -> list[dict]:
+    results: list = [None] * len(cases)
+    groups, rest = fast_path(cases)
+    for group in groups:
+        columns = evaluate_first_order_columns(
+            group.shape, group.dimensions, group.rate_constant,
+            group.effective_diffusivity, group.surface_concentration,
+        )
+        for index, fields in column_rows(group, columns):
+            results[index] = {"index": index, "status": 200, **fields}
+    for index in rest:
+        results[index] = {"index": index, **_slow_row(cases[index])}
+    return results
+
+
+@bp.post("/effectiveness/batch")
+def effectiveness_batch():
+    wants = request.accept_mimetypes.best_match(["application/json", "text/csv"],
+                                                default="application/json")
+    if request.accept_mimetypes and not request.accept_mimetypes.best_match(
+        ["application/json", "text/csv"]
+    ):
+        raise ApiProblem("not-acceptable", "This operation answers application/json or text/csv.")
+    cases = _read_cases()
+    results = run_batch(cases)
+    failed = sum(1 for r in results if r["status"] != 200)
+    if wants == "text/csv":
+        return csv_response(_csv_table(results))
+    return json_response(
+        {"rows": len(results), "succeeded": len(results) - failed, "failed": failed,
+         "results": results}
+    )
+
+
+def _csv_table(results: list[dict]) -> list[list]:
+    header = ["index", "status"] + [
+        f"{c} [{OUTPUT_UNITS[c]}]" if c in OUTPUT_UNITS else c for c in CSV_COLUMNS
+    ] + ["warnings", "errors"]
+    table = [header]
+    for r in results:
+        if r["status"] == 200:
+            cells = [_plain_value(r[c]) for c in CSV_COLUMNS]
+            warnings = ";".join(w["code"] for w in r["warnings"])
+            errors = ""
+        else:
+            cells = [""] * len(CSV_COLUMNS)
+            warnings = ""
+            errors = "; ".join(f"{e['field']}: {e['message']}" for e in r["errors"])
+        table.append([r["index"], r["status"], *cells, warnings, errors])
+    return table
+
+
+def _plain_value(value):
+    return value["value"] if isinstance(value, dict) else value

@@ -59,19 +59,22 @@ def main() -> None:
     json_body = orjson.dumps({"cases": cases})
     csv_body = make_csv(cases)
 
+    answers = {}
+
     def post_json():
-        r = client.post("/v1/effectiveness/batch", data=json_body,
-                        headers={"Content-Type": "application/json"})
-        assert r.status_code == 200 and r.get_json()["succeeded"] == ROWS
+        answers["json"] = client.post("/v1/effectiveness/batch", data=json_body,
+                                      headers={"Content-Type": "application/json"})
 
     def post_csv():
-        r = client.post("/v1/effectiveness/batch", data=csv_body,
-                        headers={"Content-Type": "text/csv", "Accept": "text/csv"})
-        assert r.status_code == 200 and r.get_data().count(b"\n") == ROWS + 1
+        answers["csv"] = client.post("/v1/effectiveness/batch", data=csv_body,
+                                     headers={"Content-Type": "text/csv", "Accept": "text/csv"})
 
     post_json()  # warm caches (unit conversions, imports)
     t_json = min(timed(post_json) for _ in range(2))
     t_csv = min(timed(post_csv) for _ in range(2))
+    # checked outside the timed region
+    assert orjson.loads(answers["json"].get_data())["succeeded"] == ROWS
+    assert answers["csv"].get_data().count(b"\n") == ROWS + 1
 
     single = cases[0]
     samples = []

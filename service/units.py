@@ -133,48 +133,53 @@ def parse_quantities(values: list, si_unit: str) -> tuple[np.ndarray, np.ndarray
     """A column of raw request values -> (SI floats, mask of values that failed).
 
     The column form of ``parse_quantity``: the same number pattern, the same cached
-    conversion and the same arithmetic (offset + scale * value), so a value gives
-    the identical float either way. Failed entries are NaN in the result.
+    conversion and the same arithmetic (offset + scale * value, elementwise IEEE
+    double operations), so a value gives the identical float either way. Failed
+    entries are NaN in the result.
     """
-    n = len(values)
     kinds = set(map(type, values))
     if kinds <= {float, int}:
         out = np.array(values, dtype=float)
         return out, ~np.isfinite(out)
-    out = np.empty(n)
-    bad = np.zeros(n, dtype=bool)
-    local: dict[str, tuple[float, float] | None] = {}
-    match = _NUMBER.match
-    for i, raw in enumerate(values):
-        kind = type(raw)
-        if kind is str and len(raw) <= MAX_UNIT_LENGTH + 40:
-            m = match(raw)
-            if m is None:
-                bad[i] = True
-                continue
-            unit = m.group(2)
-            number = float(m.group(1))
-            if not unit:
-                out[i] = number
-                continue
-            factors = local.get(unit, False)
-            if factors is False:
-                try:
-                    factors = conversion(unit, si_unit)
-                except QuantityError:
-                    factors = None
-                local[unit] = factors
-            if factors is None:
-                bad[i] = True
-                continue
-            out[i] = factors[1] + factors[0] * number
-        elif kind is float or kind is int:
-            out[i] = raw
-        else:
-            try:
-                out[i] = parse_quantity(raw, si_unit)
-            except QuantityError:
-                bad[i] = True
-    bad |= ~np.isfinite(out) & ~bad
+    if kinds == {str} and max(map(len, values)) <= MAX_UNIT_LENGTH + 40:
+        matches = list(map(_NUMBER.match, values))
+        if None not in matches:
+            return _convert_matches(matches, si_unit)
+    return _parse_one_by_one(values, si_unit)
+
+
+def _convert_matches(matches: list, si_unit: str) -> tuple[np.ndarray, np.ndarray]:
+    numbers = np.array([float(m[1]) for m in matches])
+    unit_texts = [m[2] for m in matches]
+    factors: dict[str, tuple[float, float] | None] = {}
+    for unit in set(unit_texts):
+        try:
+            factors[unit] = conversion(unit, si_unit) if unit else (1.0, 0.0)
+        except QuantityError:
+            factors[unit] = None
+    if len(factors) == 1:
+        (only,) = factors.values()
+        if only is None:
+            return np.full(len(matches), np.nan), np.ones(len(matches), dtype=bool)
+        scale, offset = only
+        out = numbers if not unit_texts[0] else offset + scale * numbers
+    else:
+        pairs = [factors[u] or (np.nan, np.nan) for u in unit_texts]
+        scale = np.array([p[0] for p in pairs])
+        offset = np.array([p[1] for p in pairs])
+        out = np.where(np.array(unit_texts, dtype=bool), offset + scale * numbers, numbers)
+    bad = ~np.isfinite(out) | ~np.isfinite(numbers)
     out[bad] = np.nan
+    return out, bad
+
+
+def _parse_one_by_one(values: list, si_unit: str) -> tuple[np.ndarray, np.ndarray]:
+    out = np.empty(len(values))
+    bad = np.zeros(len(values), dtype=bool)
+    for i, raw in enumerate(values):
+        try:
+            out[i] = parse_quantity(raw, si_unit)
+        except QuantityError:
+            bad[i] = True
+            out[i] = np.nan
     return out, bad

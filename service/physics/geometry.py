@@ -85,9 +85,14 @@ def sphere_geometry(radius) -> PelletGeometry:
     )
 
 
-def cylinder_geometry(radius) -> PelletGeometry:
-    """Infinite cylinder of radius R [m] (no end faces): L = R, V_p/S_p = R/2."""
+def cylinder_geometry(radius, length=None) -> PelletGeometry:
+    """Cylinder of radius R [m]: infinite (no end faces, L = R, V_p/S_p = R/2), or with a
+    length H [m] a finite cylinder with reacting ends (``industrial_shapes``)."""
     _positive("radius", radius)
+    if length is not None:
+        from .industrial_shapes import finite_cylinder_geometry
+
+        return finite_cylinder_geometry(radius, length)
     return PelletGeometry(
         shape="cylinder",
         shape_exponent=1,
@@ -129,10 +134,11 @@ SHAPES: dict[str, ShapeSpec] = {
         ),
         ShapeSpec(
             "cylinder",
-            "Infinitely long cylinder (end faces neglected).",
+            "Cylinder; infinitely long without a length, else with reacting end faces.",
             ("radius",),
             1,
             cylinder_geometry,
+            optional={"length": None},
         ),
         ShapeSpec(
             "slab",
@@ -155,3 +161,55 @@ def build_geometry(shape: str, **dimensions) -> PelletGeometry:
             "shape", shape, f"unknown shape; choose one of {', '.join(sorted(SHAPES))}"
         ) from None
     return spec.build(**dimensions)
+
+
+# Industrial shapes (appended; builders live in industrial_shapes.py, imported lazily because
+# that module imports PelletGeometry from here).
+def _hollow_cylinder(outer_radius, inner_radius, length=None) -> PelletGeometry:
+    from .industrial_shapes import hollow_cylinder_geometry
+
+    return hollow_cylinder_geometry(outer_radius, inner_radius, length)
+
+
+def _extrudate(lobes, lobe_diameter, length=None) -> PelletGeometry:
+    from .industrial_shapes import extrudate_geometry
+
+    return extrudate_geometry(lobes, lobe_diameter, length)
+
+
+def _custom(volume, external_area) -> PelletGeometry:
+    from .industrial_shapes import custom_geometry
+
+    return custom_geometry(volume, external_area)
+
+
+SHAPES.update(
+    {
+        spec.name: spec
+        for spec in (
+            ShapeSpec(
+                "hollow_cylinder",
+                "Ring: both curved faces permeable; with a length the end faces react too.",
+                ("outer_radius", "inner_radius"),
+                None,
+                _hollow_cylinder,
+                optional={"length": None},
+            ),
+            ShapeSpec(
+                "extrudate",
+                "Multi-lobed extrudate (lobes 3|4 of diameter lobe_diameter); optional length.",
+                ("lobes", "lobe_diameter"),
+                None,
+                _extrudate,
+                optional={"length": None},
+            ),
+            ShapeSpec(
+                "custom",
+                "Any pellet from volume and external area: generalized-modulus estimate only.",
+                ("volume", "external_area"),
+                None,
+                _custom,
+            ),
+        )
+    }
+)

@@ -55,12 +55,17 @@ def _dimension_text(unit) -> str:
     return text if text != "dimensionless" else "none (a plain number)"
 
 
+_BARE_EXPONENT = re.compile(r"(?<=[A-Za-z])(-?\d+)(?![\d.])")
+
+
 def _normalise_unit(unit: str) -> str:
+    """Tidy a unit string: unicode superscripts and dots, spreadsheet-style bare
+    exponents (``m2/s`` -> ``m^2/s``, ``s-1`` -> ``s^-1``), a leading ``/``."""
     unit = unit.strip().replace("\u00b7", "*").replace("\u00b2", "^2").replace("\u00b3", "^3")
     unit = unit.replace("\u00b5", "u").replace("\u03bc", "u")
     if unit.startswith("/"):
         unit = "1" + unit
-    return unit
+    return _BARE_EXPONENT.sub(r"^\1", unit)
 
 
 @lru_cache(maxsize=4096)

@@ -19,6 +19,10 @@ from service import units
         ("40 mol/m^3", "mol/m^3", 40.0),
         ("350 degC", "K", 623.15),  # offset unit
         ("2 mm\u00b2/s", "m^2/s", 2e-6),
+        ("1.2e-6 m2/s", "m^2/s", 1.2e-6),  # spreadsheet-style exponents
+        ("40 mol/m3", "mol/m^3", 40.0),
+        ("12 s-1", "1/s", 12.0),
+        ("0.04 mol/dm3", "mol/m^3", 40.0),
     ],
 )
 def test_parse_quantity(raw, si_unit, expected):

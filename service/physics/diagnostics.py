@@ -33,6 +33,21 @@ WARNING_CODES: dict[str, tuple[str, str]] = {
         "The generalized modulus lies between the kinetic and diffusion regimes: neither "
         "asymptote applies and the effectiveness factor depends on shape and rate law.",
     ),
+    "GENERALIZED_MODULUS_ESTIMATE": (
+        "warning",
+        "The shape is known only by its volume and external area: the effectiveness factor is "
+        "estimated from the generalized modulus, exact at both asymptotes, with a measured error "
+        "band in the transition region.",
+    ),
+    "NUMERICAL_SHAPE_SOLUTION": (
+        "info",
+        "The effectiveness factor comes from a numerical 2-D solution of the pellet "
+        "cross-section, with the stated accuracy.",
+    ),
+    "PROFILE_UNAVAILABLE": (
+        "info",
+        "The shape has no 1-D concentration profile; the requested profile is not returned.",
+    ),
     "INPUT_OUTSIDE_COMMON_RANGE": (
         "info",
         "An input lies outside the range commonly met for catalyst pellets; check its value "

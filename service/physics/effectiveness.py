@@ -45,6 +45,8 @@ class EffectivenessResult:
     diagnostics: list[Diagnostic] = field(default_factory=list)
     profile_position: np.ndarray | None = None
     profile_concentration: np.ndarray | None = None
+    method_detail: str | None = None
+    error_band: float | None = None
 
 
 def _first_order_constant(case: Case) -> float:
@@ -57,38 +59,95 @@ def _first_order_constant(case: Case) -> float:
 
 
 def evaluate(case: Case) -> EffectivenessResult:
-    """Evaluate one case (isothermal, first order, ideal shapes)."""
+    """Evaluate one case."""
     geometry = build_geometry(case.shape, **case.dimensions)
     k = _first_order_constant(case)
+    result = _first_order(case, geometry, k)
+    result.diagnostics = regime_diagnostics(result.generalized_modulus,
+                                            result.effectiveness_factor, order=1.0)
+    result.diagnostics += shape_diagnostics(case, result)
+    result.diagnostics += range_diagnostics(
+        diffusion_length=float(geometry.diffusion_length),
+        effective_diffusivity=case.effective_diffusivity,
+        surface_concentration=case.surface_concentration,
+    )
+    return result
+
+
+# method labels of the shape functions -> the three published method names
+_METHOD_NAMES = {
+    "closed_form": "closed_form",
+    "series": "closed_form",  # eigenfunction series summed to full double precision
+    "numerical": "numerical",
+    "asymptotic": "asymptotic",
+    "generalized_modulus_estimate": "asymptotic",  # built on the shape-free asymptotes
+}
+
+
+def _first_order(case: Case, geometry: PelletGeometry, k: float) -> EffectivenessResult:
+    """First-order isothermal case: closed forms, series or the 2-D section table."""
     de = case.effective_diffusivity
-    phi = float(closed_form.thiele_modulus(geometry.diffusion_length, k, de))
-    generalized = float(closed_form.thiele_modulus(geometry.characteristic_length, k, de))
-    eta = closed_form.effectiveness_first_order(phi, geometry.shape_exponent)
     cs = case.surface_concentration
+    m = geometry.shape_exponent
+    if m is not None or k == 0.0:
+        phi = float(closed_form.thiele_modulus(geometry.diffusion_length, k, de))
+        generalized = float(closed_form.thiele_modulus(geometry.characteristic_length, k, de))
+        eta = closed_form.effectiveness_first_order(phi, m) if m is not None else 1.0
+        detail, band = "closed_form", None
+    else:
+        from .industrial_shapes import effectiveness_first_order_pellet
+
+        shaped = effectiveness_first_order_pellet(case.shape, k, de, **case.dimensions)
+        phi, generalized = shaped.thiele_modulus, shaped.generalized_modulus
+        eta, detail, band = shaped.effectiveness_factor, shaped.method, shaped.error_band
     result = EffectivenessResult(
-        effectiveness_factor=eta,
+        effectiveness_factor=float(eta),
         thiele_modulus=phi,
         thiele_length=float(geometry.diffusion_length),
         generalized_modulus=generalized,
         characteristic_length=float(geometry.characteristic_length),
-        observed_rate=eta * k * cs,
+        observed_rate=float(eta) * k * cs,
         regime=regime_of(generalized),
-        method="closed_form",
+        method="numerical" if band is not None and detail == "series" else _METHOD_NAMES[detail],
         geometry=geometry,
+        method_detail=detail,
+        error_band=band,
     )
-    if case.profile_points > 0:
+    if case.profile_points > 0 and m is not None:
         xi = np.linspace(0.0, 1.0, case.profile_points)
         result.profile_position = xi * geometry.diffusion_length
-        result.profile_concentration = cs * closed_form.profile_first_order(
-            xi, phi, geometry.shape_exponent
-        )
-    result.diagnostics = regime_diagnostics(generalized, eta, order=1.0)
-    result.diagnostics += range_diagnostics(
-        diffusion_length=float(geometry.diffusion_length),
-        effective_diffusivity=de,
-        surface_concentration=cs,
-    )
+        result.profile_concentration = cs * closed_form.profile_first_order(xi, phi, m)
     return result
+
+
+def shape_diagnostics(case: Case, result: EffectivenessResult) -> list[Diagnostic]:
+    """Notes on approximate shape methods and profiles that a shape cannot give."""
+    out = []
+    if result.method_detail == "generalized_modulus_estimate":
+        out.append(diagnostic(
+            "GENERALIZED_MODULUS_ESTIMATE",
+            f"A custom shape is answered from V_p/S_p alone (the infinite-cylinder curve at the "
+            f"same generalized modulus); against exact shapes we measured deviations up to "
+            f"{100 * result.error_band:.0f} % in the transition region (generalized modulus "
+            f"0.05 to 20), less at both ends.",
+            field="pellet",
+        ))
+    elif result.error_band is not None:
+        out.append(diagnostic(
+            "NUMERICAL_SHAPE_SOLUTION",
+            f"The {case.shape} effectiveness comes from a 2-D solution of its cross-section "
+            f"(method {result.method_detail}); its relative accuracy is about "
+            f"{result.error_band:.0e}.",
+            field="pellet",
+        ))
+    if case.profile_points > 0 and result.profile_position is None:
+        out.append(diagnostic(
+            "PROFILE_UNAVAILABLE",
+            f"No 1-D concentration profile exists for a {case.shape} of this form; "
+            f"options.profile_points was ignored.",
+            field="options.profile_points",
+        ))
+    return out
 
 
 def regime_diagnostics(generalized: float, eta: float, order: float) -> list[Diagnostic]:

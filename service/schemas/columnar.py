@@ -71,7 +71,8 @@ def _structure_ok(signature: tuple) -> bool:
     shape, pellet_keys, kinetics_keys, transport_keys, surface_keys, _options = signature
     spec = SHAPES[shape]
     required = set(spec.dimensions) | {"shape"}
-    allowed = required | set(spec.optional)
+    # optional fields without a default (a length) turn a 1-D shape into a 2-D one
+    allowed = required | {name for name, default in spec.optional.items() if default is not None}
     pk = set(pellet_keys)
     kk = set(kinetics_keys)
     return (
@@ -142,6 +143,8 @@ def _validate_group(signature, rows: list, indices: np.ndarray):
         dimensions[name] = column
         bad |= failed
     for name, default in spec.optional.items():
+        if default is None:
+            continue  # excluded from the fast path by _structure_ok
         if name in pellet_keys:
             values = [r["pellet"][name] for r in rows]
             bad |= ~_choice_ok(values, f"pellet.{name}")

@@ -108,7 +108,7 @@ def result_fields(case: Case, result: EffectivenessResult) -> dict:
     return core_fields(
         result.effectiveness_factor, result.thiele_modulus, result.thiele_length,
         result.generalized_modulus, result.characteristic_length, result.observed_rate,
-        result.regime, result.method, SHAPES[case.shape].shape_exponent,
+        result.regime, result.method, geometry.shape_exponent,
         geometry.volume, geometry.external_area, result.diagnostics,
     )
 

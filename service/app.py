@@ -15,11 +15,12 @@ def create_app(config: dict | None = None) -> Flask:
     app.json.sort_keys = False
     errors.init_app(app)
 
-    from .api import batch, contract, effectiveness, meta
+    from .api import batch, contract, diffusivity, effectiveness, meta
 
     app.register_blueprint(meta.bp)
     app.register_blueprint(contract.bp)
     app.register_blueprint(effectiveness.bp)
     app.register_blueprint(batch.bp)
+    app.register_blueprint(diffusivity.bp)
     request_ids.init_app(app)
     return app

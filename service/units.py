@@ -30,8 +30,14 @@ class QuantityError(ValueError):
 
 
 @lru_cache(maxsize=1024)
-def _conversion(unit: str, si_unit: str) -> tuple[float, float]:
-    """(scale, offset) with value_SI = offset + scale * value for ``unit`` -> ``si_unit``."""
+def _conversion(unit: str, si_unit: str) -> tuple[float, float, float]:
+    """(multiplier, divisor, offset) with value_SI = value * multiplier / divisor + offset.
+
+    Decimal prefixes make the scale a power of ten that is not exact in binary
+    (0.001 for mm); dividing by the exact integer 1000 instead gives the correctly
+    rounded result (1.5 mm -> 0.0015 exactly as typed in SI), so a scale whose
+    inverse is an integer becomes a divisor, and a near-integer scale an integer.
+    """
     try:
         source = _REGISTRY.Unit(unit) if unit else _REGISTRY.dimensionless
     except Exception as exc:  # pint raises several unrelated types for bad strings
@@ -47,7 +53,15 @@ def _conversion(unit: str, si_unit: str) -> tuple[float, float]:
         one = _REGISTRY.Quantity(1.0, source).to(target).magnitude
     except Exception as exc:
         raise QuantityError(f"unit {unit!r} cannot be converted to {si_unit}") from exc
-    return float(one - zero), float(zero)
+    scale, offset = float(one - zero), float(zero)
+    if scale == 0.0 or not math.isfinite(scale):
+        raise QuantityError(f"unit {unit!r} cannot be converted to {si_unit}")
+    inverse = 1.0 / scale
+    if abs(scale) < 1.0 and abs(inverse - round(inverse)) <= 1e-9 * abs(inverse):
+        return 1.0, float(round(inverse)), offset
+    if abs(scale - round(scale)) <= 1e-9 * abs(scale):
+        return float(round(scale)), 1.0, offset
+    return scale, 1.0, offset
 
 
 def _dimension_text(unit) -> str:
@@ -69,8 +83,9 @@ def _normalise_unit(unit: str) -> str:
 
 
 @lru_cache(maxsize=4096)
-def conversion(unit: str, si_unit: str) -> tuple[float, float]:
-    """(scale, offset) such that value_SI = offset + scale * value (cached per unit string)."""
+def conversion(unit: str, si_unit: str) -> tuple[float, float, float]:
+    """(multiplier, divisor, offset): value_SI = value * multiplier / divisor + offset
+    (cached per unit string; see ``_conversion``)."""
     unit = _normalise_unit(unit)
     if len(unit) > MAX_UNIT_LENGTH:
         raise QuantityError(f"unit string longer than {MAX_UNIT_LENGTH} characters")
@@ -79,8 +94,8 @@ def conversion(unit: str, si_unit: str) -> tuple[float, float]:
 
 def to_si(value: float, unit: str, si_unit: str) -> float:
     """Convert ``value`` in ``unit`` to ``si_unit``; QuantityError on a bad unit or dimension."""
-    scale, offset = conversion(unit, si_unit)
-    return offset + scale * value
+    multiplier, divisor, offset = conversion(unit, si_unit)
+    return value * multiplier / divisor + offset
 
 
 def split_quantity(raw) -> tuple[float, str | None]:
@@ -138,8 +153,8 @@ def parse_quantities(values: list, si_unit: str) -> tuple[np.ndarray, np.ndarray
     """A column of raw request values -> (SI floats, mask of values that failed).
 
     The column form of ``parse_quantity``: the same number pattern, the same cached
-    conversion and the same arithmetic (offset + scale * value, elementwise IEEE
-    double operations), so a value gives the identical float either way. Failed
+    conversion and the same arithmetic (value * multiplier / divisor + offset,
+    elementwise IEEE double operations), so a value gives the identical float. Failed
     entries are NaN in the result.
     """
     kinds = set(map(type, values))
@@ -156,23 +171,25 @@ def parse_quantities(values: list, si_unit: str) -> tuple[np.ndarray, np.ndarray
 def _convert_matches(matches: list, si_unit: str) -> tuple[np.ndarray, np.ndarray]:
     numbers = np.array([float(m[1]) for m in matches])
     unit_texts = [m[2] for m in matches]
-    factors: dict[str, tuple[float, float] | None] = {}
+    factors: dict[str, tuple[float, float, float] | None] = {}
     for unit in set(unit_texts):
         try:
-            factors[unit] = conversion(unit, si_unit) if unit else (1.0, 0.0)
+            factors[unit] = conversion(unit, si_unit) if unit else (1.0, 1.0, 0.0)
         except QuantityError:
             factors[unit] = None
     if len(factors) == 1:
         (only,) = factors.values()
         if only is None:
             return np.full(len(matches), np.nan), np.ones(len(matches), dtype=bool)
-        scale, offset = only
-        out = numbers if not unit_texts[0] else offset + scale * numbers
+        multiplier, divisor, offset = only
+        out = numbers if not unit_texts[0] else numbers * multiplier / divisor + offset
     else:
-        pairs = [factors[u] or (np.nan, np.nan) for u in unit_texts]
-        scale = np.array([p[0] for p in pairs])
-        offset = np.array([p[1] for p in pairs])
-        out = np.where(np.array(unit_texts, dtype=bool), offset + scale * numbers, numbers)
+        triples = [factors[u] or (np.nan, 1.0, np.nan) for u in unit_texts]
+        multiplier = np.array([t[0] for t in triples])
+        divisor = np.array([t[1] for t in triples])
+        offset = np.array([t[2] for t in triples])
+        out = np.where(np.array(unit_texts, dtype=bool),
+                       numbers * multiplier / divisor + offset, numbers)
     bad = ~np.isfinite(out) | ~np.isfinite(numbers)
     out[bad] = np.nan
     return out, bad

@@ -16,15 +16,20 @@ bp = Blueprint("effectiveness", __name__, url_prefix="/v1")
 FORMATS = ("json", "csv", "value")
 
 
-def load_case(body):
-    """Validate a decoded JSON body into a Case (422 via the error handlers)."""
+def require_object(body, what: str) -> dict:
+    """422 unless the decoded body is a JSON object."""
     if not isinstance(body, dict):
         raise ApiProblem(
             "validation-error",
-            "The request body must be a JSON object describing one case.",
+            f"The request body must be a JSON object describing {what}.",
             [{"field": "(body)", "message": f"expected an object, got {type(body).__name__}"}],
         )
-    return CASE_SCHEMA.load(body)
+    return body
+
+
+def load_case(body):
+    """Validate a decoded JSON body into a Case (422 via the error handlers)."""
+    return CASE_SCHEMA.load(require_object(body, "one case"))
 
 
 @bp.post("/effectiveness")

@@ -7,7 +7,7 @@ the regime and the diagnostics.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -16,6 +16,7 @@ from .case import Case
 from .diagnostics import Diagnostic, diagnostic
 from .errors import PhysicsInputError
 from .geometry import PelletGeometry, build_geometry
+from .transport import resolve_pore
 from .regime import DIFFUSION_LIMIT, KINETIC_LIMIT, regime_of
 
 # Ranges commonly met for catalyst pellets (common practice; used only for info diagnostics).
@@ -47,6 +48,7 @@ class EffectivenessResult:
     profile_concentration: np.ndarray | None = None
     method_detail: str | None = None
     error_band: float | None = None
+    pore: object | None = None  # transport.PoreResult when the pore structure gave D_e
 
 
 def _first_order_constant(case: Case) -> float:
@@ -60,9 +62,14 @@ def _first_order_constant(case: Case) -> float:
 
 def evaluate(case: Case) -> EffectivenessResult:
     """Evaluate one case."""
+    pore = None
+    if case.effective_diffusivity is None:
+        pore = resolve_pore(case.pore)
+        case = replace(case, effective_diffusivity=pore.effective_diffusivity)
     geometry = build_geometry(case.shape, **case.dimensions)
     k = _first_order_constant(case)
     result = _first_order(case, geometry, k)
+    result.pore = pore
     result.diagnostics = regime_diagnostics(result.generalized_modulus,
                                             result.effectiveness_factor, order=1.0)
     result.diagnostics += shape_diagnostics(case, result)
@@ -71,6 +78,8 @@ def evaluate(case: Case) -> EffectivenessResult:
         effective_diffusivity=case.effective_diffusivity,
         surface_concentration=case.surface_concentration,
     )
+    if pore is not None:
+        result.diagnostics += list(pore.diagnostics)
     return result
 
 

@@ -11,6 +11,7 @@ from marshmallow import RAISE, Schema, ValidationError, fields, post_load, valid
 from .. import units
 from ..physics.case import Case
 from ..physics.geometry import SHAPES
+from .pore import PoreSchema
 from .fields import Choice, Integer, Number, Quantity, RawQuantity, Tagged, field_for
 from .rules import FIELD_RULES
 
@@ -93,7 +94,16 @@ KINETICS_SCHEMAS = {"power_law": PowerLawSchema()}
 
 
 class TransportSchema(StrictSchema):
-    effective_diffusivity = Quantity("transport.effective_diffusivity", required=True)
+    effective_diffusivity = Quantity("transport.effective_diffusivity")
+    pore = fields.Nested(PoreSchema)
+
+    @validates_schema
+    def _one_source(self, data, **kwargs):
+        if ("effective_diffusivity" in data) == ("pore" in data):
+            raise ValidationError(
+                "give either effective_diffusivity or pore (the pore structure), not both",
+                field_name="effective_diffusivity",
+            )
 
 
 class SurfaceSchema(StrictSchema):
@@ -119,7 +129,8 @@ class CaseSchema(StrictSchema):
             dimensions=data["pellet"]["dimensions"],
             model=kinetics["model"],
             kinetic_parameters=kinetics["parameters"],
-            effective_diffusivity=data["transport"]["effective_diffusivity"],
+            effective_diffusivity=data["transport"].get("effective_diffusivity"),
+            pore=data["transport"].get("pore"),
             surface_concentration=data["surface"]["concentration"],
             profile_points=data["options"]["profile_points"],
             extras={

@@ -103,5 +103,5 @@ def _cell_value(name: str, cell: str, unit: str | None, conversion):
         number = float(cell)
     except ValueError:
         return cell  # carries its own unit, or is garbage: the schema says which
-    scale, offset = conversion
-    return offset + scale * number  # the arithmetic of units.to_si: identical SI values
+    multiplier, divisor, offset = conversion
+    return number * multiplier / divisor + offset  # units.to_si's arithmetic: identical values

@@ -72,12 +72,36 @@ def echo_inputs(case: Case) -> dict:
     return {
         "pellet": pellet,
         "kinetics": kinetics,
-        "transport": {
-            "effective_diffusivity": quantity(case.effective_diffusivity, "m^2/s"),
-        },
+        "transport": _echo_transport(case),
         "surface": {"concentration": quantity(case.surface_concentration, "mol/m^3")},
         "options": {"profile_points": case.profile_points},
     }
+
+
+def _echo_transport(case: Case) -> dict:
+    if case.pore is None:
+        return {"effective_diffusivity": quantity(case.effective_diffusivity, "m^2/s")}
+    return {"pore": echo_pore(case.pore)}
+
+
+def echo_pore(pore) -> dict:
+    """The pore block as it was read (SI)."""
+    out: dict = {"porosity": pore.porosity, "tortuosity": pore.tortuosity, "phase": pore.phase}
+    for name, unit in (("pore_diameter", "m"), ("temperature", "K"), ("pressure", "Pa"),
+                       ("molecular_diffusivity", "m^2/s")):
+        value = getattr(pore, name)
+        if value is not None:
+            out[name] = quantity(value, unit)
+    for name in ("species", "carrier"):
+        sp = getattr(pore, name)
+        if sp is not None:
+            out[name] = {"name": sp.name, "molar_mass": quantity(sp.molar_mass, "kg/mol")}
+    for name, unit in (("solvent_viscosity", "Pa*s"), ("solvent_molar_mass", "kg/mol"),
+                       ("association_factor", ""), ("solute_molar_volume", "m^3/mol")):
+        if name in pore.liquid:
+            value = pore.liquid[name]
+            out[name] = quantity(value, unit) if unit else value
+    return out
 
 
 def core_fields(
@@ -127,7 +151,27 @@ def effectiveness_payload(case: Case, result: EffectivenessResult) -> dict:
                 "unit": OUTPUT_UNITS["profile.concentration"],
             },
         }
+    if result.pore is not None:
+        out["diffusivity"] = diffusivity_fields(result.pore)
     out["inputs"] = echo_inputs(case)
+    return out
+
+
+def diffusivity_fields(pore) -> dict:
+    """Molecular, Knudsen, pore and effective diffusivities (and Knudsen regime)."""
+    unit = "m^2/s"
+    out = {
+        "molecular_diffusivity": quantity(pore.molecular_diffusivity, unit),
+        "molecular_diffusivity_method": pore.molecular_method,
+    }
+    if pore.knudsen_diffusivity is not None:
+        out["knudsen_diffusivity"] = quantity(pore.knudsen_diffusivity, unit)
+    out["pore_diffusivity"] = quantity(pore.pore_diffusivity, unit)
+    out["effective_diffusivity"] = quantity(pore.effective_diffusivity, unit)
+    if pore.knudsen_number is not None:
+        out["knudsen_number"] = _finite(pore.knudsen_number)
+        out["knudsen_number_basis"] = pore.knudsen_number_basis
+    out["regime"] = pore.regime
     return out
 
 
@@ -195,6 +239,10 @@ def scalar_row(result: EffectivenessResult) -> dict:
         "method": result.method,
         "warnings": ";".join(d.code for d in result.diagnostics),
     }
+
+
+def warning_dicts(diagnostics) -> list[dict]:
+    return [_warning(d) for d in diagnostics]
 
 
 def _warning(diag) -> dict:

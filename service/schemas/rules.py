@@ -97,6 +97,47 @@ FIELD_RULES: dict[str, FieldRule] = {
     "transport.effective_diffusivity": _positive(
         "m^2/s", "Effective diffusivity D_e of the reactant inside the pellet."
     ),
+    "transport.pore.porosity": FieldRule(
+        "", "Pellet porosity (void fraction).", minimum=0.0, exclusive_minimum=True,
+        maximum=1.0, exclusive_maximum=True, kind="number",
+    ),
+    "transport.pore.tortuosity": FieldRule(
+        "", "Tortuosity factor of the pores.", minimum=1.0, kind="number"
+    ),
+    "transport.pore.pore_diameter": _positive("m", "Mean pore diameter."),
+    "transport.pore.temperature": _positive("K", "Temperature of the fluid in the pores."),
+    "transport.pore.pressure": _positive("Pa", "Total pressure (gas phase)."),
+    "transport.pore.molecular_diffusivity": _positive(
+        "m^2/s", "Molecular diffusivity of the reactant in the fluid, if known."
+    ),
+    "transport.pore.species": FieldRule(
+        None,
+        "Diffusing species: a name from the built-in table, or {molar_mass, diffusion_volume, "
+        "collision_diameter}.",
+        kind="species",
+    ),
+    "transport.pore.carrier": FieldRule(
+        None, "Carrier (bulk) gas, as for species; needed to estimate the molecular diffusivity.",
+        kind="species",
+    ),
+    "transport.pore.phase": FieldRule(
+        None, "Fluid in the pores.", kind="choice", default="gas", choices=("gas", "liquid")
+    ),
+    "transport.pore.solvent_viscosity": _positive("Pa*s", "Solvent viscosity (liquid phase)."),
+    "transport.pore.solvent_molar_mass": _positive("kg/mol", "Solvent molar mass (liquid phase)."),
+    "transport.pore.association_factor": FieldRule(
+        "", "Wilke-Chang association factor of the solvent (water 2.6, methanol 1.9, "
+        "ethanol 1.5, unassociated 1.0).", minimum=0.0, exclusive_minimum=True, kind="number",
+    ),
+    "transport.pore.solute_molar_volume": _positive(
+        "m^3/mol", "Solute molar volume at its normal boiling point (liquid phase)."
+    ),
+    "species.molar_mass": _positive("kg/mol", "Molar mass of a species given by its data."),
+    "species.diffusion_volume": FieldRule(
+        "", "Fuller diffusion volume (sum of atomic increments).", minimum=0.0,
+        exclusive_minimum=True, kind="number",
+    ),
+    "species.collision_diameter": _positive("m", "Lennard-Jones collision diameter."),
     "surface.concentration": FieldRule(
         "mol/m^3", "Reactant concentration at the pellet surface.", minimum=0.0
     ),

@@ -95,14 +95,16 @@ class PowerLaw:
         return self.rate_constant * (np.ones_like(c) if self.order == 0 else c**self.order)
 
     def derivative(self, c):
+        """dr/dc; 0 below c = 0 where the rate is held at 0 (consistent with ``rate``)."""
         n = self.order
+        c = np.asarray(c, dtype=float)
         if n == 0:
-            return np.zeros_like(np.asarray(c, dtype=float))
-        c = np.maximum(c, 0.0)
+            return np.zeros_like(c)
+        cp = np.maximum(c, 0.0)
         if n < 1:
             with np.errstate(divide="ignore"):
-                return np.where(c > 0, self.rate_constant * n * c ** (n - 1), np.inf)
-        return self.rate_constant * n * c ** (n - 1)
+                return np.where(c > 0, self.rate_constant * n * cp ** (n - 1), np.where(c == 0, np.inf, 0.0))
+        return np.where(c >= 0, self.rate_constant * n * cp ** (n - 1), 0.0)
 
     def integral(self, c_low, c_high):
         n = self.order
@@ -127,9 +129,11 @@ class LangmuirHinshelwood:
         return self.rate_constant * c / (1.0 + self.adsorption_constant * c) ** self.exponent
 
     def derivative(self, c):
-        c = np.maximum(c, 0.0)
+        """dr/dc; 0 below c = 0 where the rate is held at 0 (consistent with ``rate``)."""
+        c = np.asarray(c, dtype=float)
+        cp = np.maximum(c, 0.0)
         K, m = self.adsorption_constant, self.exponent
-        return self.rate_constant * (1.0 + K * c - m * K * c) / (1.0 + K * c) ** (m + 1)
+        return np.where(c >= 0, self.rate_constant * (1.0 + K * cp - m * K * cp) / (1.0 + K * cp) ** (m + 1), 0.0)
 
     def integral(self, c_low, c_high):
         k, K = self.rate_constant, self.adsorption_constant

@@ -61,7 +61,42 @@ def _first_order_constant(case: Case) -> float:
 
 
 def evaluate(case: Case) -> EffectivenessResult:
-    """Evaluate one case."""
+    """Evaluate one case.
+
+    Raises PhysicsInputError when the inputs are individually valid but their
+    combination overflows (a result that would not be finite is never returned).
+    """
+    try:
+        with np.errstate(all="ignore"):
+            result = _evaluate(case)
+    except (OverflowError, ZeroDivisionError):
+        result = None
+    except PhysicsInputError as exc:
+        if exc.argument != "thiele_modulus":  # an infinite modulus is the overflow below
+            raise
+        result = None
+    if result is None or not _all_finite(result):
+        raise PhysicsInputError(
+            "(case)", None,
+            "the inputs give a non-finite result (an overflow); check the magnitudes and "
+            "units of the rate constant, diffusivity, sizes and concentration",
+        )
+    return result
+
+
+def _all_finite(result: EffectivenessResult) -> bool:
+    numbers = [result.effectiveness_factor, result.thiele_modulus, result.thiele_length,
+               result.generalized_modulus, result.characteristic_length, result.observed_rate]
+    geometry = result.geometry
+    if geometry.volume is not None:
+        numbers += [geometry.volume, geometry.external_area]
+    if not all(np.isfinite(numbers)):
+        return False
+    return result.profile_concentration is None or bool(
+        np.all(np.isfinite(result.profile_concentration)))
+
+
+def _evaluate(case: Case) -> EffectivenessResult:
     pore = None
     if case.effective_diffusivity is None:
         pore = resolve_pore(case.pore)
@@ -217,6 +252,20 @@ class ColumnResult:
     volume: np.ndarray | None
     external_area: np.ndarray | None
     diagnostics: list[list[Diagnostic]]
+    finite: np.ndarray  # rows whose results are all finite (the others are re-run one by one)
+
+    def subset(self, mask: np.ndarray) -> "ColumnResult":
+        """The rows where ``mask`` is true."""
+        picked = np.flatnonzero(mask).tolist()
+        values = {}
+        for name, value in vars(self).items():
+            if value is None:
+                values[name] = None
+            elif isinstance(value, list):
+                values[name] = [value[i] for i in picked]
+            else:
+                values[name] = np.asarray(value)[mask]
+        return ColumnResult(**values)
 
 
 def evaluate_first_order_columns(
@@ -234,12 +283,19 @@ def evaluate_first_order_columns(
     """
     geometry = build_geometry(shape, **dimensions)
     n = len(rate_constant)
+    with np.errstate(all="ignore"):
+        return _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration)
+
+
+def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration):
     length = np.broadcast_to(np.asarray(geometry.diffusion_length, dtype=float), (n,))
     char_length = np.broadcast_to(np.asarray(geometry.characteristic_length, dtype=float), (n,))
     phi = closed_form.thiele_modulus(length, rate_constant, effective_diffusivity)
     generalized = closed_form.thiele_modulus(char_length, rate_constant, effective_diffusivity)
-    eta = closed_form.effectiveness_first_order(phi, geometry.shape_exponent)
+    finite = np.isfinite(phi) & np.isfinite(generalized)
+    eta = closed_form.effectiveness_first_order(np.where(finite, phi, 0.0), geometry.shape_exponent)
     rate = eta * rate_constant * surface_concentration
+    finite &= np.isfinite(rate)
     regime = np.where(
         generalized < KINETIC_LIMIT,
         "kinetic",
@@ -247,7 +303,7 @@ def evaluate_first_order_columns(
     ).tolist()
     diagnostics: list[list[Diagnostic]] = [[] for _ in range(n)]
     out_of_range = _out_of_range_mask(length, effective_diffusivity, surface_concentration)
-    for i in np.flatnonzero((generalized >= KINETIC_LIMIT) | out_of_range).tolist():
+    for i in np.flatnonzero(finite & ((generalized >= KINETIC_LIMIT) | out_of_range)).tolist():
         diagnostics[i] = regime_diagnostics(float(generalized[i]), float(eta[i]), 1.0)
         if out_of_range[i]:
             diagnostics[i] += range_diagnostics(
@@ -268,6 +324,7 @@ def evaluate_first_order_columns(
             None if geometry.external_area is None else np.broadcast_to(geometry.external_area, (n,))
         ),
         diagnostics=diagnostics,
+        finite=finite,
     )
 
 

@@ -39,6 +39,13 @@ class FastGroup:
     effective_diffusivity: np.ndarray
     surface_concentration: np.ndarray
 
+    def subset(self, mask: np.ndarray) -> "FastGroup":
+        """The rows where ``mask`` is true."""
+        return FastGroup(self.shape, self.rows[mask],
+                         {name: values[mask] for name, values in self.dimensions.items()},
+                         self.rate_constant[mask], self.effective_diffusivity[mask],
+                         self.surface_concentration[mask])
+
 
 def _signature(case) -> tuple | None:
     """A hashable description of a row's structure, or None if it is not fast-path shaped."""

@@ -52,7 +52,8 @@ def query_to_body(args, reserved: tuple[str, ...]) -> tuple[dict, list[dict]]:
             continue
         parts = key.split(".")
         if len(parts) > MAX_DEPTH or not all(parts):
-            errors.append({"field": key, "message": "unknown field (not part of this request's schema)"})
+            errors.append({"field": key or "(empty key)",
+                           "message": "unknown field (not part of this request's schema)"})
             continue
         node = body
         clash = False

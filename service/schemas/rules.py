@@ -47,8 +47,18 @@ class FieldRule:
         return None
 
 
+# Upper bounds far beyond any catalyst pellet or process, per SI unit. They are not
+# physics limits; they keep every intermediate of the arithmetic finite (a radius of
+# 1e300 m would overflow its volume) so that nonsense is a 422 and never a 500.
+SANITY_MAXIMUM = {
+    "m": 1e3, "m^2": 1e6, "m^3": 1e9, "K": 1e5, "Pa": 1e10, "kg/m^3": 1e5, "m^2/s": 1.0,
+    "Pa*s": 1e3, "kg/mol": 1e3, "m^3/mol": 1.0, "m/s": 1e3, "mol/m^3": 1e9,
+}
+
+
 def _positive(unit: str, description: str) -> FieldRule:
-    return FieldRule(unit, description, minimum=0.0, exclusive_minimum=True)
+    return FieldRule(unit, description, minimum=0.0, exclusive_minimum=True,
+                     maximum=SANITY_MAXIMUM.get(unit))
 
 
 FIELD_RULES: dict[str, FieldRule] = {
@@ -82,6 +92,7 @@ FIELD_RULES: dict[str, FieldRule] = {
         "Rate constant k; its SI unit follows the order: (mol/m^3)^(1-n)/s per pellet volume, "
         "(mol/m^3)^(1-n) m^3/(kg s) per catalyst mass.",
         minimum=0.0,
+        maximum=1e30,
     ),
     "kinetics.rate_basis": FieldRule(
         None,
@@ -139,7 +150,8 @@ FIELD_RULES: dict[str, FieldRule] = {
     ),
     "species.collision_diameter": _positive("m", "Lennard-Jones collision diameter."),
     "surface.concentration": FieldRule(
-        "mol/m^3", "Reactant concentration at the pellet surface.", minimum=0.0
+        "mol/m^3", "Reactant concentration at the pellet surface.", minimum=0.0,
+        maximum=SANITY_MAXIMUM["mol/m^3"],
     ),
     "options.profile_points": FieldRule(
         None,
@@ -148,6 +160,55 @@ FIELD_RULES: dict[str, FieldRule] = {
         maximum=2001,
         kind="integer",
         default=0,
+    ),
+    # --- POST /v1/diagnose (lab-data check) and POST /v1/size (pellet sizing): top-level
+    # fields beside the case blocks, and the size request's bed and table blocks.
+    "observed_rate": FieldRule(
+        None,
+        "Measured (observed) reaction rate: per pellet volume, SI unit mol/(m^3*s); with "
+        "observed_rate_basis catalyst_mass per catalyst mass, SI unit mol/(kg*s).",
+        minimum=0.0,
+        exclusive_minimum=True,
+    ),
+    "observed_rate_basis": FieldRule(
+        None,
+        "Basis of observed_rate: per pellet volume, or per catalyst mass (then the top-level "
+        "pellet_density converts it).",
+        kind="choice",
+        default="pellet_volume",
+        choices=("pellet_volume", "catalyst_mass"),
+    ),
+    "pellet_density": _positive(
+        "kg/m^3", "Pellet (particle) density, needed with observed_rate_basis catalyst_mass."
+    ),
+    "target_effectiveness": FieldRule(
+        "", "Effectiveness factor the largest pellet must keep.", minimum=0.0,
+        exclusive_minimum=True, maximum=1.0, exclusive_maximum=True, kind="number",
+    ),
+    "bed.voidage": FieldRule(
+        "", "Bed voidage (void fraction of the packed bed).", minimum=0.0,
+        exclusive_minimum=True, maximum=1.0, exclusive_maximum=True, kind="number",
+    ),
+    "bed.fluid_density": _positive("kg/m^3", "Density of the fluid flowing through the bed."),
+    "bed.fluid_viscosity": _positive("Pa*s", "Dynamic viscosity of the fluid."),
+    "bed.superficial_velocity": FieldRule(
+        "m/s", "Superficial (empty-tube) velocity of the fluid.", minimum=0.0
+    ),
+    "table.min_scale": FieldRule(
+        "", "Smallest scale factor of the trade-off table (1 = the given pellet).",
+        minimum=0.0, exclusive_minimum=True, kind="number", default=0.1,
+    ),
+    "table.max_scale": FieldRule(
+        "", "Largest scale factor of the trade-off table (1 = the given pellet).",
+        minimum=0.0, exclusive_minimum=True, kind="number", default=10.0,
+    ),
+    "table.points": FieldRule(
+        None, "Number of rows of the trade-off table.", minimum=2, maximum=200,
+        kind="integer", default=25,
+    ),
+    "table.spacing": FieldRule(
+        None, "Spacing of the scale factors: even in log(scale) or in scale.", kind="choice",
+        default="log", choices=("log", "linear"),
     ),
 }
 

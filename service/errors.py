@@ -19,6 +19,8 @@ PROBLEM_MEDIA_TYPE = "application/problem+json"
 PROBLEMS: dict[str, tuple[int, str]] = {
     "malformed-body": (400, "Malformed request body"),
     "bad-request": (400, "Bad request"),
+    "unauthorized": (401, "API key required"),
+    "forbidden": (403, "API key not accepted"),
     "not-found": (404, "Not found"),
     "method-not-allowed": (405, "Method not allowed"),
     "not-acceptable": (406, "Not acceptable"),
@@ -27,6 +29,11 @@ PROBLEMS: dict[str, tuple[int, str]] = {
     "validation-error": (422, "Validation failed"),
     "solver-budget-exceeded": (503, "Solver time budget exceeded"),
     "internal-error": (500, "Internal error"),
+}
+
+# Headers a problem kind always carries (RFC 9110 section 15.5.2: a 401 names its scheme).
+PROBLEM_HEADERS: dict[str, dict[str, str]] = {
+    "unauthorized": {"WWW-Authenticate": 'Bearer realm="pellet-effectiveness"'},
 }
 
 _HTTP_KIND = {400: "bad-request", 404: "not-found", 405: "method-not-allowed",
@@ -76,7 +83,9 @@ def validation_problem(errors: list[dict]) -> ApiProblem:
 
 
 def physics_problem(exc: PhysicsInputError, field: str | None = None) -> ApiProblem:
-    name = field or exc.argument
+    from .schemas.responses import request_field
+
+    name = field or request_field(exc.argument)
     return ApiProblem(
         "validation-error",
         f"The case cannot be computed: {exc.reason}.",
@@ -89,7 +98,8 @@ def init_app(app: Flask) -> None:
 
     @app.errorhandler(ApiProblem)
     def _api_problem(exc: ApiProblem):
-        return problem_response(exc.kind, exc.detail, exc.errors, **exc.extra)
+        return problem_response(exc.kind, exc.detail, exc.errors,
+                                headers=PROBLEM_HEADERS.get(exc.kind), **exc.extra)
 
     @app.errorhandler(ValidationError)
     def _validation(exc: ValidationError):

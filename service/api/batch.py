@@ -10,13 +10,14 @@ from marshmallow import ValidationError
 
 from ..errors import ApiProblem, validation_problem
 from ..formats import csv_response, json_response, read_json_body
-from ..metrics import observe_batch, timed_evaluate
-from ..physics.effectiveness import evaluate, evaluate_first_order_columns
+from ..metrics import observe_batch
+from ..physics.effectiveness import evaluate_first_order_columns
 from ..physics.errors import PhysicsInputError, SolverBudgetExceeded
 from ..schemas.case import CASE_SCHEMA, flatten_errors
 from ..schemas.columnar import fast_path
 from ..schemas.csv_rows import CsvProblem, read_csv_cases
-from ..schemas.responses import OUTPUT_UNITS, column_rows, result_fields
+from .effectiveness import compute
+from ..schemas.responses import OUTPUT_UNITS, column_rows, request_field, result_fields
 
 bp = Blueprint("batch", __name__, url_prefix="/v1")
 
@@ -55,11 +56,12 @@ def _slow_row(raw) -> dict:
         return {"status": 422, "errors": [{"field": "(row)", "message": message}]}
     try:
         case = CASE_SCHEMA.load(raw)
-        return {"status": 200, **result_fields(case, timed_evaluate(evaluate, case))}
+        return {"status": 200, **result_fields(case, compute(case))}
     except ValidationError as exc:
         return {"status": 422, "errors": flatten_errors(exc.messages)}
     except PhysicsInputError as exc:
-        return {"status": 422, "errors": [{"field": exc.argument, "message": exc.reason}]}
+        return {"status": 422, "errors": [{"field": request_field(exc.argument),
+                                           "message": exc.reason}]}
     except SolverBudgetExceeded as exc:
         return {"status": 503, "errors": [{"field": "(row)", "message": str(exc)}]}
 

@@ -2,10 +2,11 @@
 
 from __future__ import annotations
 
-from flask import Blueprint, request
+from flask import Blueprint, current_app, request
 
 from ..errors import ApiProblem, validation_problem
 from ..formats import csv_response, json_response, read_json_body, text_response
+from ..metrics import timed_evaluate
 from ..physics.effectiveness import evaluate
 from ..schemas.case import CASE_SCHEMA
 from ..schemas.query import query_to_body
@@ -14,6 +15,12 @@ from ..schemas.responses import OUTPUT_UNITS, SCALAR_FIELDS, effectiveness_paylo
 bp = Blueprint("effectiveness", __name__, url_prefix="/v1")
 
 FORMATS = ("json", "csv", "value")
+
+
+def compute(case):
+    """Evaluate a case within the configured solver budget, recording solver metrics."""
+    budget = current_app.config["SOLVER_TIME_BUDGET"]
+    return timed_evaluate(lambda c: evaluate(c, budget), case)
 
 
 def require_object(body, what: str) -> dict:
@@ -35,7 +42,7 @@ def load_case(body):
 @bp.post("/effectiveness")
 def effectiveness_post():
     case = load_case(read_json_body())
-    return json_response(effectiveness_payload(case, evaluate(case)))
+    return json_response(effectiveness_payload(case, compute(case)))
 
 
 def _output_choice() -> tuple[str, str | None]:
@@ -63,7 +70,7 @@ def effectiveness_get():
     if errors:
         raise validation_problem(errors)
     case = load_case(body)
-    result = evaluate(case)
+    result = compute(case)
     if fmt == "json":
         return json_response(effectiveness_payload(case, result))
     row = scalar_row(result)

@@ -48,10 +48,53 @@ WARNING_CODES: dict[str, tuple[str, str]] = {
         "info",
         "The shape has no 1-D concentration profile; the requested profile is not returned.",
     ),
+    "LARGE_TEMPERATURE_RISE": (
+        "caution",
+        "Heat effects: the maximum internal temperature rise (Prater relation) can at least "
+        "double the rate at the pellet centre, or exceeds 50 K.",
+    ),
+    "MULTIPLE_STEADY_STATES": (
+        "caution",
+        "Several steady states exist (ignition/extinction, possible runaway); the headline is "
+        "the stable state with the largest effectiveness factor.",
+    ),
+    "EFFECTIVENESS_ABOVE_ONE": (
+        "caution",
+        "The effectiveness factor exceeds one (heat effects or self-inhibiting kinetics).",
+    ),
+    "DEAD_ZONE": (
+        "info",
+        "An order below one consumes the reactant before the centre; the dead-zone extent is "
+        "reported.",
+    ),
+    "SOLVER_PARTIAL": (
+        "warning",
+        "The steady-state search did not converge from every start; a state may be missing.",
+    ),
+    "EXTERNAL_FILM_SIGNIFICANT": (
+        "info",
+        "The external film takes more than 5 % of the concentration driving force.",
+    ),
+    "HEAT_FILM_NEGLECTED": (
+        "warning",
+        "Heat effects with a film but no heat transfer coefficient: the surface is taken at the "
+        "bulk temperature.",
+    ),
+    "CORRELATION_OUT_OF_RANGE": (
+        "warning",
+        "A dimensionless group lies outside the range the transfer correlation was fitted "
+        "to; the coefficient is an extrapolation.",
+    ),
     "INPUT_OUTSIDE_COMMON_RANGE": (
         "info",
         "An input lies outside the range commonly met for catalyst pellets; check its value "
         "and unit.",
+    ),
+    "INVERSION_WITH_HEAT_EFFECTS": (
+        "warning",
+        "POST /v1/diagnose with thermal data: the observed rate need not rise monotonically "
+        "with the rate constant, so the inferred rate constant may not be the only one that "
+        "reproduces the observed rate.",
     ),
 }
 

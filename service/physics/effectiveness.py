@@ -49,26 +49,25 @@ class EffectivenessResult:
     method_detail: str | None = None
     error_band: float | None = None
     pore: object | None = None  # transport.PoreResult when the pore structure gave D_e
+    general: object | None = None  # general_case.GeneralSolution (numerical engine)
+    overall_effectiveness: float | None = None  # with a film: rate / rate at bulk conditions
+    surface_concentration: float | None = None  # actual surface value (differs with a film)
+    film: object | None = None  # general_case.FilmNumbers
 
 
-def _first_order_constant(case: Case) -> float:
-    params = case.kinetic_parameters
-    if case.model != "power_law" or params.get("order", 1.0) != 1.0:
-        raise PhysicsInputError(
-            "kinetics", case.model, "only first-order power-law kinetics have a closed form here"
-        )
-    return params["rate_constant"]
+def _is_first_order(case: Case) -> bool:
+    return case.model == "power_law" and case.kinetic_parameters.get("order", 1.0) == 1.0
 
 
-def evaluate(case: Case) -> EffectivenessResult:
-    """Evaluate one case.
+def evaluate(case: Case, time_budget: float = 5.0) -> EffectivenessResult:
+    """Evaluate one case; ``time_budget`` [s] bounds a numerical solve (SolverBudgetExceeded).
 
     Raises PhysicsInputError when the inputs are individually valid but their
     combination overflows (a result that would not be finite is never returned).
     """
     try:
         with np.errstate(all="ignore"):
-            result = _evaluate(case)
+            result = _evaluate(case, time_budget)
     except (OverflowError, ZeroDivisionError):
         result = None
     except PhysicsInputError as exc:
@@ -96,25 +95,90 @@ def _all_finite(result: EffectivenessResult) -> bool:
         np.all(np.isfinite(result.profile_concentration)))
 
 
-def _evaluate(case: Case) -> EffectivenessResult:
+def _evaluate(case: Case, time_budget: float) -> EffectivenessResult:
     pore = None
     if case.effective_diffusivity is None:
         pore = resolve_pore(case.pore)
         case = replace(case, effective_diffusivity=pore.effective_diffusivity)
     geometry = build_geometry(case.shape, **case.dimensions)
-    k = _first_order_constant(case)
-    result = _first_order(case, geometry, k)
+    k = case.kinetic_parameters["rate_constant"]
+    first_order = _is_first_order(case)
+    if k == 0.0:
+        result = _no_reaction(case, geometry)
+    elif case.reference_concentration == 0.0 and not (first_order and case.thermal is None):
+        raise PhysicsInputError(
+            "concentration", 0.0,
+            "must be > 0 for this case: the effectiveness factor of a non-linear or "
+            "non-isothermal rate law depends on the concentration",
+        )
+    elif first_order and case.thermal is None:
+        result = _first_order(case, geometry, k)
+    else:
+        result = _general(case, geometry, time_budget)
     result.pore = pore
+    order = case.kinetic_parameters.get("order", 1.0) if case.model == "power_law" else 1.0
     result.diagnostics = regime_diagnostics(result.generalized_modulus,
-                                            result.effectiveness_factor, order=1.0)
+                                            result.effectiveness_factor, order=order)
     result.diagnostics += shape_diagnostics(case, result)
+    result.diagnostics += safety_diagnostics(result)
     result.diagnostics += range_diagnostics(
         diffusion_length=float(geometry.diffusion_length),
         effective_diffusivity=case.effective_diffusivity,
-        surface_concentration=case.surface_concentration,
+        surface_concentration=case.reference_concentration,
     )
+    if result.film is not None:
+        result.diagnostics += list(result.film.diagnostics)
     if pore is not None:
         result.diagnostics += list(pore.diagnostics)
+    return result
+
+
+def _no_reaction(case: Case, geometry: PelletGeometry) -> EffectivenessResult:
+    """A zero rate constant: no reaction, no gradient; eta = 1, its limit at zero modulus."""
+    result = EffectivenessResult(
+        effectiveness_factor=1.0, thiele_modulus=0.0,
+        thiele_length=float(geometry.diffusion_length), generalized_modulus=0.0,
+        characteristic_length=float(geometry.characteristic_length), observed_rate=0.0,
+        regime="kinetic", method="closed_form", geometry=geometry,
+        overall_effectiveness=1.0 if case.film is not None else None,
+        surface_concentration=case.reference_concentration,
+    )
+    if case.profile_points > 0 and geometry.shape_exponent is not None:
+        xi = np.linspace(0.0, 1.0, case.profile_points)
+        result.profile_position = xi * geometry.diffusion_length
+        result.profile_concentration = np.full(xi.shape, float(case.reference_concentration))
+    return result
+
+
+def _general(case: Case, geometry: PelletGeometry, time_budget: float) -> EffectivenessResult:
+    from .general_case import solve_general
+
+    solution = solve_general(case, geometry, time_budget)
+    result = EffectivenessResult(
+        effectiveness_factor=solution.effectiveness_factor,
+        thiele_modulus=solution.thiele_modulus,
+        thiele_length=float(geometry.diffusion_length),
+        generalized_modulus=solution.generalized_modulus,
+        characteristic_length=float(geometry.characteristic_length),
+        observed_rate=solution.observed_rate,
+        regime=regime_of(solution.generalized_modulus),
+        method=solution.method,
+        geometry=geometry,
+        method_detail="generalized_modulus_estimate" if solution.approximated else solution.method,
+        error_band=None,
+        general=solution,
+        overall_effectiveness=solution.overall_effectiveness,
+        surface_concentration=(solution.surface_concentration
+                               if solution.surface_concentration is not None
+                               else case.surface_concentration),
+        film=solution.film,
+    )
+    if solution.approximated:
+        from .industrial_shapes import GENERALIZED_MODULUS_ERROR_BAND
+
+        result.error_band = GENERALIZED_MODULUS_ERROR_BAND
+    result.profile_position = solution.profile_position
+    result.profile_concentration = solution.profile_concentration
     return result
 
 
@@ -131,9 +195,9 @@ _METHOD_NAMES = {
 def _first_order(case: Case, geometry: PelletGeometry, k: float) -> EffectivenessResult:
     """First-order isothermal case: closed forms, series or the 2-D section table."""
     de = case.effective_diffusivity
-    cs = case.surface_concentration
+    cs = case.reference_concentration
     m = geometry.shape_exponent
-    if m is not None or k == 0.0:
+    if m is not None:
         phi = float(closed_form.thiele_modulus(geometry.diffusion_length, k, de))
         generalized = float(closed_form.thiele_modulus(geometry.characteristic_length, k, de))
         eta = closed_form.effectiveness_first_order(phi, m) if m is not None else 1.0
@@ -157,20 +221,121 @@ def _first_order(case: Case, geometry: PelletGeometry, k: float) -> Effectivenes
         method_detail=detail,
         error_band=band,
     )
+    surface = cs
+    if case.film is not None:
+        from .film import overall_effectiveness_first_order
+        from .general_case import film_numbers
+
+        result.film = film_numbers(case, geometry, de, None)
+        biot_vs = (result.film.mass_transfer_coefficient * float(geometry.characteristic_length)
+                   / de)
+        overall = float(overall_effectiveness_first_order(float(eta), generalized, biot_vs))
+        result.overall_effectiveness = overall
+        surface = cs * overall / float(eta)
+        result.observed_rate = overall * k * cs
+    result.surface_concentration = surface
     if case.profile_points > 0 and m is not None:
         xi = np.linspace(0.0, 1.0, case.profile_points)
         result.profile_position = xi * geometry.diffusion_length
-        result.profile_concentration = cs * closed_form.profile_first_order(xi, phi, m)
+        result.profile_concentration = surface * closed_form.profile_first_order(xi, phi, m)
     return result
+
+
+# Heat-effect caution thresholds (see safety_diagnostics).
+RATE_ENHANCEMENT_CAUTION = 2.0  # exp(gamma beta / (1 + beta)): the hottest point may double the rate
+TEMPERATURE_RISE_CAUTION = 50.0  # [K] maximum internal rise, common practice (sintering, selectivity)
+EXTERNAL_SHARE_NOTE = 0.05  # 1 - c_s/c_b above 5 %: the film matters (the Mears criterion's basis)
+
+
+def safety_diagnostics(result: EffectivenessResult) -> list[Diagnostic]:
+    """Cautions for heat effects, several steady states and eta > 1; notes on the film,
+    dead zones and partial convergence.
+
+    The large-temperature-rise caution fires when the Arrhenius factor at the maximum
+    internal temperature (Prater relation, T_max = T_s (1 + beta)) could at least double
+    the rate, exp(gamma beta / (1 + beta)) >= 2: beyond that the heat effect, not
+    diffusion, dominates the effectiveness factor and multiplicity becomes possible
+    (Weisz & Hicks 1962); or when the rise itself exceeds 50 K (common practice).
+    """
+    out: list[Diagnostic] = []
+    general = result.general
+    th = getattr(general, "thermal", None)
+    if th is not None and th.prater_number > 0:
+        enhancement = float(np.exp(min(th.arrhenius_number * th.prater_number
+                                       / (1.0 + th.prater_number), 700.0)))
+        rise = th.maximum_temperature_rise
+        if enhancement >= RATE_ENHANCEMENT_CAUTION or (rise is not None and rise >= TEMPERATURE_RISE_CAUTION):
+            rise_text = f"{rise:.4g} K" if rise is not None else f"beta = {th.prater_number:.4g} times the surface temperature"
+            out.append(diagnostic(
+                "LARGE_TEMPERATURE_RISE",
+                f"The pellet centre can run up to {rise_text} hotter than its surface "
+                f"(Prater number {th.prater_number:.4g}, Arrhenius number "
+                f"{th.arrhenius_number:.4g}); the rate there can be {enhancement:.3g} times "
+                f"the surface rate, and hot spots, runaway or catalyst damage are possible.",
+                field="thermal",
+            ))
+    if general is not None and len(general.steady_states) > 1:
+        states = ", ".join(
+            f"eta = {st.effectiveness_factor:.4g} ({'stable' if st.stable else 'unstable'})"
+            for st in general.steady_states)
+        out.append(diagnostic(
+            "MULTIPLE_STEADY_STATES",
+            f"The pellet has {len(general.steady_states)} steady states ({states}); which one "
+            f"it sits in depends on its history (ignition and extinction). The headline "
+            f"effectiveness factor is the stable state with the largest eta, the worst case "
+            f"for heat release; all states are listed under steady_states.",
+            field="kinetics",
+        ))
+    if result.effectiveness_factor > 1.0:
+        out.append(diagnostic(
+            "EFFECTIVENESS_ABOVE_ONE",
+            f"The effectiveness factor is {result.effectiveness_factor:.4g} > 1: the pellet "
+            f"interior runs faster than its surface (heat effects or rate inhibition), a sign "
+            f"of strong coupling that makes the result sensitive to every input.",
+            field="kinetics",
+        ))
+    if general is not None and general.dead_zone_fraction:
+        out.append(diagnostic(
+            "DEAD_ZONE",
+            f"The reactant is used up before the centre: a dead zone of "
+            f"{general.dead_zone_fraction:.4g} of the diffusion length (order below one).",
+            field="kinetics",
+        ))
+    if general is not None and general.solver.get("status") == "partially_converged":
+        out.append(diagnostic(
+            "SOLVER_PARTIAL",
+            f"The steady-state search did not converge from every start: {general.solver['message']}",
+        ))
+    if result.overall_effectiveness is not None and result.effectiveness_factor > 0:
+        share = 1.0 - result.overall_effectiveness / result.effectiveness_factor
+        if th is None and share > EXTERNAL_SHARE_NOTE:
+            out.append(diagnostic(
+                "EXTERNAL_FILM_SIGNIFICANT",
+                f"The external film takes {100 * share:.3g} % of the concentration driving "
+                f"force (surface concentration {100 * (1 - share):.4g} % of bulk).",
+                field="film",
+            ))
+    film = result.film
+    if film is not None and th is not None and film.heat_biot_number is None:
+        out.append(diagnostic(
+            "HEAT_FILM_NEGLECTED",
+            "No heat transfer coefficient (or the data to estimate it) was given: the pellet "
+            "surface is taken at the bulk temperature, which underestimates the heating.",
+            field="film.heat_transfer_coefficient",
+        ))
+    return out
 
 
 def shape_diagnostics(case: Case, result: EffectivenessResult) -> list[Diagnostic]:
     """Notes on approximate shape methods and profiles that a shape cannot give."""
     out = []
     if result.method_detail == "generalized_modulus_estimate":
+        what = ("A custom shape is answered" if case.shape == "custom" else
+                f"This {case.shape} case (rate law, heat or film beyond the exact solutions for "
+                f"the shape) is answered")
         out.append(diagnostic(
             "GENERALIZED_MODULUS_ESTIMATE",
-            f"A custom shape is answered from V_p/S_p alone (the infinite-cylinder curve at the "
+            f"{what} from V_p/S_p alone (the infinite-cylinder solution at the "
             f"same generalized modulus); against exact shapes we measured deviations up to "
             f"{100 * result.error_band:.0f} % in the transition region (generalized modulus "
             f"0.05 to 20), less at both ends.",

@@ -40,17 +40,11 @@ from typing import Callable
 
 import numpy as np
 
-from .diagnostics import Diagnostic
+from .diagnostics import WARNING_CODES, Diagnostic
 from .errors import PhysicsInputError
 
 # Code emitted here (severity, meaning); to be listed in diagnostics.WARNING_CODES.
-FILM_WARNING_CODES = {
-    "CORRELATION_OUT_OF_RANGE": (
-        "warning",
-        "A dimensionless group lies outside the range the transfer correlation was fitted "
-        "to; the coefficient is an extrapolation.",
-    ),
-}
+FILM_WARNING_CODES = {"CORRELATION_OUT_OF_RANGE": WARNING_CODES["CORRELATION_OUT_OF_RANGE"]}
 
 
 def _positive(name: str, value) -> float:

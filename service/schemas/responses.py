@@ -23,11 +23,38 @@ OUTPUT_UNITS = {
 }
 
 # Physics diagnostic field names -> request field names.
-DIAGNOSTIC_FIELDS = {
+# Physics argument names (in diagnostics and PhysicsInputError) -> request field names.
+PHYSICS_FIELDS = {
     "effective_diffusivity": "transport.effective_diffusivity",
     "surface_concentration": "surface.concentration",
+    "concentration": "surface.concentration",
     "diffusion_length": "pellet",
+    "radius": "pellet.radius",
+    "thickness": "pellet.thickness",
+    "outer_radius": "pellet.outer_radius",
+    "inner_radius": "pellet.inner_radius",
+    "length": "pellet.length",
+    "lobes": "pellet.lobes",
+    "lobe_diameter": "pellet.lobe_diameter",
+    "volume": "pellet.volume",
+    "external_area": "pellet.external_area",
+    "rate_constant": "kinetics.rate_constant",
+    "order": "kinetics.order",
+    "adsorption_constant": "kinetics.adsorption_constant",
+    "equilibrium_concentration": "kinetics.equilibrium_concentration",
+    "molecular_diffusivity": "transport.pore.molecular_diffusivity",
+    "species": "transport.pore.species",
+    "prater_number": "thermal.prater_number",
+    "arrhenius_number": "thermal.arrhenius_number",
 }
+
+
+def request_field(physics_name: str, with_film: bool = False) -> str:
+    """The request field a physics argument name stands for."""
+    name = PHYSICS_FIELDS.get(physics_name, physics_name)
+    if with_film and name == "surface.concentration":
+        return "bulk.concentration"
+    return name
 
 # Result fields a spreadsheet cell may ask for with field= (scalars only).
 SCALAR_FIELDS = (
@@ -53,29 +80,45 @@ def _finite(value: float) -> float:
     return value
 
 
+def _echo_rule(prefix: str, name: str, value):
+    rule = FIELD_RULES.get(f"{prefix}.{name}")
+    if value is None or isinstance(value, (str, bool)) or rule is None or not rule.unit:
+        return value
+    return quantity(value, rule.unit)
+
+
 def echo_inputs(case: Case) -> dict:
     """The interpreted inputs in SI, so a caller sees how every field was read."""
     pellet: dict = {"shape": case.shape}
     for name, value in case.dimensions.items():
-        rule = FIELD_RULES.get(f"pellet.{name}")
-        pellet[name] = quantity(value, rule.unit) if rule and rule.unit else value
-    params = case.kinetic_parameters
-    kinetics = {
-        "model": case.model,
-        "order": params["order"],
-        "rate_constant": quantity(params["rate_constant"], case.extras["rate_constant_unit"]),
-        "rate_basis": "pellet_volume",
-    }
+        pellet[name] = _echo_rule("pellet", name, value)
+    kinetics: dict = {"model": case.model}
+    for name, value in case.kinetic_parameters.items():
+        if name == "rate_constant":
+            kinetics[name] = quantity(value, case.extras["rate_constant_unit"])
+        else:
+            kinetics[name] = _echo_rule("kinetics", name, value)
+    kinetics["rate_basis"] = "pellet_volume"
     if case.extras.get("rate_basis") == "catalyst_mass":
         kinetics["converted_from"] = "catalyst_mass"
         kinetics["pellet_density"] = quantity(case.extras["pellet_density"], "kg/m^3")
-    return {
-        "pellet": pellet,
-        "kinetics": kinetics,
-        "transport": _echo_transport(case),
-        "surface": {"concentration": quantity(case.surface_concentration, "mol/m^3")},
-        "options": {"profile_points": case.profile_points},
-    }
+    out = {"pellet": pellet, "kinetics": kinetics, "transport": _echo_transport(case)}
+    if case.film is None:
+        out["surface"] = {"concentration": quantity(case.surface_concentration, "mol/m^3")}
+    else:
+        bulk = {"concentration": quantity(case.bulk_concentration, "mol/m^3")}
+        if case.bulk_temperature is not None:
+            bulk["temperature"] = quantity(case.bulk_temperature, "K")
+        out["bulk"] = bulk
+        film = {k: _echo_rule("film", k, v) for k, v in vars(case.film).items()
+                if k not in ("flow",) and v is not None}
+        film.update({k: _echo_rule("film", k, v) for k, v in case.film.flow.items()})
+        out["film"] = film
+    if case.thermal is not None:
+        out["thermal"] = {k: _echo_rule("thermal", k, v) for k, v in vars(case.thermal).items()
+                          if v is not None}
+    out["options"] = {"profile_points": case.profile_points}
+    return out
 
 
 def _echo_transport(case: Case) -> dict:
@@ -129,12 +172,91 @@ def core_fields(
 
 def result_fields(case: Case, result: EffectivenessResult) -> dict:
     geometry = result.geometry
-    return core_fields(
+    out = core_fields(
         result.effectiveness_factor, result.thiele_modulus, result.thiele_length,
         result.generalized_modulus, result.characteristic_length, result.observed_rate,
         result.regime, result.method, geometry.shape_exponent,
         geometry.volume, geometry.external_area, result.diagnostics,
     )
+    warnings = out.pop("warnings")
+    out.update(engine_fields(result))
+    out["warnings"] = warnings
+    return out
+
+
+def _q_or_none(value, unit):
+    return None if value is None else quantity(value, unit)
+
+
+def engine_fields(result: EffectivenessResult) -> dict:
+    """Film, heat-effect, steady-state and solver fields, present when they apply."""
+    out: dict = {}
+    if result.overall_effectiveness is not None:
+        out["overall_effectiveness"] = _finite(result.overall_effectiveness)
+        out["surface_concentration"] = quantity(result.surface_concentration, "mol/m^3")
+        if result.effectiveness_factor > 0:
+            out["external_resistance_fraction"] = _finite(
+                1.0 - result.overall_effectiveness / result.effectiveness_factor)
+    film = result.film
+    if film is not None:
+        block = {
+            "mass_transfer_coefficient": quantity(film.mass_transfer_coefficient, "m/s"),
+            "mass_biot_number": _finite(film.mass_biot_number),
+        }
+        if film.heat_transfer_coefficient is not None:
+            block["heat_transfer_coefficient"] = quantity(film.heat_transfer_coefficient, "W/(m^2*K)")
+        if film.heat_biot_number is not None:
+            block["heat_biot_number"] = _finite(film.heat_biot_number)
+        if film.correlations:
+            block["particle_diameter"] = quantity(film.particle_diameter, "m")
+            block["correlations"] = {
+                kind: {"name": c["name"], "reference": c["reference"],
+                       "groups": {k: _finite(v) for k, v in c["groups"].items()}}
+                for kind, c in film.correlations.items()
+            }
+        out["film"] = block
+    general = result.general
+    if general is None:
+        return out
+    th = general.thermal
+    if th is not None:
+        block = {"prater_number": _finite(th.prater_number),
+                 "arrhenius_number": _finite(th.arrhenius_number)}
+        if th.temperature is not None:
+            block["reference_temperature"] = quantity(th.temperature, "K")
+            block["maximum_temperature_rise"] = quantity(th.maximum_temperature_rise, "K")
+        out["thermal"] = block
+        if general.surface_temperature is not None:
+            out["surface_temperature"] = quantity(general.surface_temperature, "K")
+    if general.steady_states:
+        out["steady_states"] = [_state(st, th is not None) for st in general.steady_states]
+        out["headline_state"] = general.headline_index
+    if general.dead_zone_fraction:
+        out["dead_zone"] = {
+            "fraction": _finite(general.dead_zone_fraction),
+            "radius": quantity(general.dead_zone_fraction * result.thiele_length, "m"),
+        }
+    solver = {k: v for k, v in general.solver.items() if v is not None and k != "elapsed"}
+    for key in ("residual", "error_estimate"):
+        if key in solver:
+            solver[key] = _finite(solver[key])
+    out["solver"] = solver
+    return out
+
+
+def _state(state, thermal: bool) -> dict:
+    out = {"effectiveness_factor": _finite(state.effectiveness_factor),
+           "center_concentration": quantity(state.center_concentration, "mol/m^3")}
+    if thermal and state.center_temperature is not None:
+        out["center_temperature"] = quantity(state.center_temperature, "K")
+    out["stable"] = bool(state.stable)
+    if state.overall_effectiveness is not None:
+        out["overall_effectiveness"] = _finite(state.overall_effectiveness)
+    if state.surface_concentration is not None:
+        out["surface_concentration"] = quantity(state.surface_concentration, "mol/m^3")
+    if thermal and state.surface_temperature is not None:
+        out["surface_temperature"] = quantity(state.surface_temperature, "K")
+    return out
 
 
 def effectiveness_payload(case: Case, result: EffectivenessResult) -> dict:
@@ -151,6 +273,10 @@ def effectiveness_payload(case: Case, result: EffectivenessResult) -> dict:
                 "unit": OUTPUT_UNITS["profile.concentration"],
             },
         }
+        general = result.general
+        if general is not None and general.profile_temperature is not None:
+            out["profile"]["temperature"] = {
+                "value": [_finite(v) for v in general.profile_temperature], "unit": "K"}
     if result.pore is not None:
         out["diffusivity"] = diffusivity_fields(result.pore)
     out["inputs"] = echo_inputs(case)
@@ -248,5 +374,5 @@ def warning_dicts(diagnostics) -> list[dict]:
 def _warning(diag) -> dict:
     item = diag.as_dict()
     if "field" in item:
-        item["field"] = DIAGNOSTIC_FIELDS.get(item["field"], item["field"])
+        item["field"] = request_field(item["field"])
     return item

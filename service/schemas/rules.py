@@ -53,6 +53,7 @@ class FieldRule:
 SANITY_MAXIMUM = {
     "m": 1e3, "m^2": 1e6, "m^3": 1e9, "K": 1e5, "Pa": 1e10, "kg/m^3": 1e5, "m^2/s": 1.0,
     "Pa*s": 1e3, "kg/mol": 1e3, "m^3/mol": 1.0, "m/s": 1e3, "mol/m^3": 1e9,
+    "W/(m*K)": 1e4, "W/(m^2*K)": 1e8, "J/(kg*K)": 1e6,
 }
 
 
@@ -105,6 +106,77 @@ FIELD_RULES: dict[str, FieldRule] = {
     "kinetics.pellet_density": _positive(
         "kg/m^3", "Pellet (particle) density, needed with rate_basis catalyst_mass."
     ),
+    "kinetics.adsorption_constant": FieldRule(
+        "m^3/mol", "Adsorption constant K of r = k c / (1 + K c)^m.", minimum=0.0,
+        maximum=1e30,
+    ),
+    "kinetics.exponent": FieldRule(
+        None, "Exponent m of the adsorption term (1 or 2).", kind="choice", default=1,
+        choices=(1, 2),
+    ),
+    "kinetics.equilibrium_concentration": FieldRule(
+        "mol/m^3", "Equilibrium concentration c_eq of r = k (c - c_eq); below the surface "
+        "(or bulk) concentration.", minimum=0.0, maximum=SANITY_MAXIMUM["mol/m^3"],
+    ),
+    "thermal.prater_number": FieldRule(
+        "", "Prater number beta = (-dH) D_e c_s / (lambda_e T_s); > 0 exothermic.",
+        minimum=-1.0, exclusive_minimum=True, maximum=10.0, kind="number",
+    ),
+    "thermal.arrhenius_number": FieldRule(
+        "", "Arrhenius number gamma = E / (R T_s).", minimum=0.0, maximum=200.0, kind="number",
+    ),
+    "thermal.heat_of_reaction": FieldRule(
+        "J/mol", "Heat (enthalpy) of reaction; negative for an exothermic reaction.",
+        minimum=-1e8, maximum=1e8,
+    ),
+    "thermal.activation_energy": FieldRule(
+        "J/mol", "Activation energy E of the rate constant.", minimum=0.0, maximum=1e7,
+    ),
+    "thermal.effective_thermal_conductivity": _positive(
+        "W/(m*K)", "Effective thermal conductivity lambda_e of the pellet."
+    ),
+    "thermal.temperature": _positive(
+        "K", "Temperature at the pellet surface (with a film: give bulk.temperature instead)."
+    ),
+    "film.mass_transfer_coefficient": _positive(
+        "m/s", "Fluid-to-pellet mass transfer coefficient k_m."
+    ),
+    "film.heat_transfer_coefficient": _positive(
+        "W/(m^2*K)", "Fluid-to-pellet heat transfer coefficient h."
+    ),
+    "film.superficial_velocity": _positive("m/s", "Superficial (empty-tube) fluid velocity."),
+    "film.fluid_density": _positive("kg/m^3", "Fluid density."),
+    "film.fluid_viscosity": _positive("Pa*s", "Fluid dynamic viscosity."),
+    "film.molecular_diffusivity": _positive(
+        "m^2/s", "Molecular diffusivity of the reactant in the fluid."
+    ),
+    "film.bed_voidage": FieldRule(
+        "", "Bed voidage.", minimum=0.0, exclusive_minimum=True, maximum=1.0,
+        exclusive_maximum=True, kind="number",
+    ),
+    "film.particle_diameter": _positive(
+        "m", "Particle diameter for the correlations; default 6 V_p/S_p (the diameter of the "
+        "sphere with the pellet's V_p/S_p)."
+    ),
+    "film.fluid_thermal_conductivity": _positive(
+        "W/(m*K)", "Fluid thermal conductivity (heat transfer correlation)."
+    ),
+    "film.fluid_heat_capacity": _positive(
+        "J/(kg*K)", "Fluid specific heat capacity (heat transfer correlation)."
+    ),
+    "film.mass_correlation": FieldRule(
+        None, "Packed-bed mass transfer correlation.", kind="choice", default="wakao_funazkri",
+        choices=("wakao_funazkri", "dwivedi_upadhyay", "gnielinski"),
+    ),
+    "film.heat_correlation": FieldRule(
+        None, "Packed-bed heat transfer correlation.", kind="choice", default="wakao_kaguei",
+        choices=("wakao_kaguei", "gnielinski"),
+    ),
+    "bulk.concentration": FieldRule(
+        "mol/m^3", "Reactant concentration in the bulk fluid (with a film).", minimum=0.0,
+        maximum=SANITY_MAXIMUM["mol/m^3"],
+    ),
+    "bulk.temperature": _positive("K", "Bulk fluid temperature (with a film and heat effects)."),
     "transport.effective_diffusivity": _positive(
         "m^2/s", "Effective diffusivity D_e of the reactant inside the pellet."
     ),

@@ -143,7 +143,7 @@ def _random_rows(n, seed):
 
 
 @pytest.mark.parametrize("seed", [1, 2, 3])
-def test_columnar_and_schema_paths_agree(seed):
+def test_columnar_and_schema_paths_agree(app, seed):
     """The same rows through both validators: the fast path accepts only rows the schema
     accepts, with identical SI values (the schema decides every other row)."""
     rows = _random_rows(2500, seed)
@@ -163,7 +163,8 @@ def test_columnar_and_schema_paths_agree(seed):
     assert accepted.isdisjoint(rest) and accepted | set(rest) == set(range(len(rows)))
     assert len(accepted) > 20  # the generator does produce fast rows
     # and the answers of the batch equal the single-case answers row by row
-    results = run_batch(rows)
+    with app.app_context():
+        results = run_batch(rows)
     for index in sorted(accepted)[:40]:
         case = CASE_SCHEMA.load(rows[index])
         from service.physics.effectiveness import evaluate

@@ -80,6 +80,36 @@ def main():
     print(f"ratio to a direct scipy solve_bvp on the same problem: {t_ours / t_scipy:.2f} "
           f"(solve_bvp median {t_scipy * 1e3:.2f} ms)")
     print(f"non-isothermal steady-state search (sphere, gamma 20, beta 0.3): median {t_thermal * 1e3:.2f} ms")
+    shapes()
+
+
+SHAPE_CASES = {
+    "ring, infinite, first order": {"shape": "hollow_cylinder", "outer_radius": 3e-3, "inner_radius": 1e-3},
+    "ring, finite, first order": {"shape": "hollow_cylinder", "outer_radius": 3e-3, "inner_radius": 1e-3, "length": 5e-3},
+    "finite cylinder, first order": {"shape": "cylinder", "radius": 1.5e-3, "length": 4e-3},
+    "trilobe, first order (2-D section)": {"shape": "extrudate", "lobes": 3, "lobe_diameter": 1.2e-3},
+    "quadrilobe, finite, first order": {"shape": "extrudate", "lobes": 4, "lobe_diameter": 1.2e-3, "length": 5e-3},
+    "custom (V, S), first order": {"shape": "custom", "volume": 1e-8, "external_area": 2.5e-5},
+    "washcoat slab (one face), first order": {"shape": "slab", "thickness": 5e-5, "exposed_faces": 1},
+}
+
+
+def shapes():
+    """Median time of one full evaluation (physics entry point) per new shape."""
+    from service.physics.case import Case
+    from service.physics.effectiveness import evaluate
+
+    def run(pellet, order=1.0, k=12.0):
+        dims = {key: value for key, value in pellet.items() if key != "shape"}
+        case = Case(pellet["shape"], dims, "power_law", {"order": order, "rate_constant": k},
+                    1.2e-6, 40.0)
+        return evaluate(case)
+
+    for name, pellet in SHAPE_CASES.items():
+        t = _median_time(lambda _x, p=pellet: run(p), [None] * 20)
+        print(f"{name}: median {t * 1e3:.2f} ms per case")
+    t = _median_time(lambda _x: run(SHAPE_CASES["finite cylinder, first order"], 2.0, 0.3), [None] * 5)
+    print(f"finite cylinder, order 2 (2-D r-z solution): median {t * 1e3:.2f} ms per case")
 
 
 if __name__ == "__main__":

@@ -205,6 +205,14 @@ def unreachable_message(observed_rate: float, check: LabDataCheck) -> str:
     """Plain sentence for a rate that no rate constant reproduces."""
     inv = check.inversion
     low, high = inv.searched
+    if inv.status != 1:
+        return (
+            f"{inv.message}: observed_rate {observed_rate:.6g} mol/(m^3*s) (per pellet volume) "
+            f"could not be inverted because the case could not be computed at a rate constant "
+            f"the search needed (rates met: {inv.lowest_rate:.6g} to {inv.highest_rate:.6g} "
+            f"mol/(m^3*s)); see /v1/effectiveness for this case near the expected rate "
+            f"constant."
+        )
     return (
         f"{inv.message}: observed_rate {observed_rate:.6g} mol/(m^3*s) (per pellet volume) "
         f"is not reached by this pellet for any rate constant from {low:.3g} to {high:.3g} "

@@ -22,6 +22,7 @@ import pint
 _REGISTRY = pint.UnitRegistry()
 
 _NUMBER = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
+NUMBER_PATTERN = _NUMBER  # "number unit": group 1 the number, group 2 the unit (may be empty)
 MAX_UNIT_LENGTH = 64
 
 

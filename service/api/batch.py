@@ -5,6 +5,7 @@ from __future__ import annotations
 import gc
 from contextlib import contextmanager
 
+import numpy as np
 from flask import Blueprint, current_app, request
 from marshmallow import ValidationError
 
@@ -14,8 +15,8 @@ from ..metrics import observe_batch
 from ..physics.effectiveness import evaluate_first_order_columns
 from ..physics.errors import PhysicsInputError, SolverBudgetExceeded
 from ..schemas.case import CASE_SCHEMA, flatten_errors
-from ..schemas.columnar import fast_path
-from ..schemas.csv_rows import CsvProblem, read_csv_cases
+from ..schemas.columnar import fast_path_columns, flatten_cases, row_case
+from ..schemas.csv_rows import CsvProblem, read_csv_columns
 from .effectiveness import compute
 from ..schemas.responses import OUTPUT_UNITS, column_rows, request_field, result_fields
 
@@ -27,15 +28,34 @@ CSV_COLUMNS = (
 )
 
 
-def _read_cases() -> list:
+class Batch:
+    """The rows of one batch as dotted columns, and how to rebuild one row as a case."""
+
+    def __init__(self, columns: dict, count: int, odd=None, cases: list | None = None,
+                 problems: dict | None = None):
+        self.columns, self.count, self.odd = columns, count, odd
+        self.cases, self.problems = cases, problems or {}
+
+    def case(self, index: int):
+        if index in self.problems:
+            return self.problems[index]  # a string: the row's problem
+        if self.cases is not None:
+            return self.cases[index]
+        return row_case(self.columns, index)
+
+
+def _read_batch() -> Batch:
     limit = current_app.config["MAX_BATCH_ROWS"]
     if request.mimetype in ("text/csv", "application/csv"):
         try:
-            cases, count = read_csv_cases(request.get_data(cache=False), limit)
+            columns, count, ragged = read_csv_columns(request.get_data(cache=False), limit)
         except CsvProblem as exc:
             if exc.malformed:
                 raise ApiProblem("malformed-body", str(exc)) from None
             raise validation_problem([{"field": exc.field, "message": str(exc)}]) from None
+        odd = np.zeros(count, dtype=bool)
+        odd[list(ragged)] = True
+        batch = Batch(columns, count, odd, problems=ragged)
     else:
         body = read_json_body()
         if not isinstance(body, dict) or set(body) != {"cases"} or not isinstance(body["cases"], list):
@@ -44,9 +64,12 @@ def _read_cases() -> list:
             )
         cases = body["cases"]
         count = len(cases)
+        if count <= limit:
+            columns, odd = flatten_cases(cases)
+            batch = Batch(columns, count, odd, cases=cases)
     if count > limit:
         raise ApiProblem("too-large", f"The batch has {count} rows; the limit is {limit}.")
-    return cases
+    return batch
 
 
 def _slow_row(raw) -> dict:
@@ -82,9 +105,14 @@ def _collector_paused():
             gc.enable()
 
 
-def run_batch(cases: list) -> list[dict]:
-    results: list = [None] * len(cases)
-    groups, rest = fast_path(cases)
+def run_batch(cases: list | Batch) -> list[dict]:
+    """Answer every row: fast-path groups column-wise, every other row one by one."""
+    if not isinstance(cases, Batch):
+        columns, odd = flatten_cases(cases)
+        cases = Batch(columns, len(cases), odd, cases=cases)
+    batch = cases
+    results: list = [None] * batch.count
+    groups, rest = fast_path_columns(batch.columns, batch.count, batch.odd)
     for group in groups:
         columns = evaluate_first_order_columns(
             group.shape, group.dimensions, group.rate_constant,
@@ -96,7 +124,7 @@ def run_batch(cases: list) -> list[dict]:
         for index, fields in column_rows(group, columns):
             results[index] = {"index": index, "status": 200, **fields}
     for index in sorted(rest):
-        results[index] = {"index": index, **_slow_row(cases[index])}
+        results[index] = {"index": index, **_slow_row(batch.case(index))}
     return results
 
 
@@ -109,9 +137,9 @@ def effectiveness_batch():
     ):
         raise ApiProblem("not-acceptable", "This operation answers application/json or text/csv.")
     with _collector_paused():
-        cases = _read_cases()
-        observe_batch(len(cases))
-        results = run_batch(cases)
+        batch = _read_batch()
+        observe_batch(batch.count)
+        results = run_batch(batch)
         failed = sum(1 for r in results if r["status"] != 200)
         if wants == "text/csv":
             return csv_response(_csv_table(results))

@@ -468,8 +468,10 @@ def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentr
     ).tolist()
     diagnostics: list[list[Diagnostic]] = [[] for _ in range(n)]
     out_of_range = _out_of_range_mask(length, effective_diffusivity, surface_concentration)
-    for i in np.flatnonzero(finite & ((generalized >= KINETIC_LIMIT) | out_of_range)).tolist():
-        diagnostics[i] = regime_diagnostics(float(generalized[i]), float(eta[i]), 1.0)
+    flagged = np.flatnonzero(finite & ((generalized >= KINETIC_LIMIT) | out_of_range)).tolist()
+    generalized_values, eta_values = generalized[flagged].tolist(), eta[flagged].tolist()
+    for i, gen_i, eta_i in zip(flagged, generalized_values, eta_values):
+        diagnostics[i] = regime_diagnostics(gen_i, eta_i, 1.0)
         if out_of_range[i]:
             diagnostics[i] += range_diagnostics(
                 diffusion_length=float(length[i]),

@@ -1,14 +1,17 @@
-"""Columnar validation of batch rows, for the first-order closed-form fast path.
+"""Column-wise validation of batch rows, for the first-order closed-form fast path.
 
 A per-row marshmallow load costs ~0.1 ms, too slow for 100k-row batches, so rows
 of the simple, common form (ideal shape, first-order power law on a pellet-volume
-basis) are validated and converted column by column with numpy. The rules come
-from the same table as the schemas (``rules.FIELD_RULES``) and the same unit
-conversion (``units``). Any row the fast path does not fully accept (other rate
-laws, a bad value, a missing field, a range violation...) is handed to the case
-schema, which is the authority on errors: the two paths cannot disagree about a
-row that fails, and a test feeds the same rows through both to show they agree
-on the rows that pass.
+basis, isothermal, no film) are validated and converted column by column with numpy.
+The rules come from the same table as the schemas (``rules.FIELD_RULES``) and the
+same unit conversion (``units``). Any row the fast path does not fully accept (other
+rate laws, a bad value, a missing field, a range violation...) is handed to the case
+schema, which is the authority on errors: the two paths cannot disagree about a row
+that fails, and a test feeds the same rows through both to show they agree on the
+rows that pass.
+
+Both batch inputs arrive here as columns: a JSON list of cases is flattened to
+dotted columns (``pellet.radius``: [...]), a CSV table already is one.
 """
 
 from __future__ import annotations
@@ -22,10 +25,25 @@ from .. import units
 from ..physics.geometry import SHAPES
 from .rules import FIELD_RULES
 
-SECTIONS = ("pellet", "kinetics", "transport", "surface")
-_TRANSPORT_KEYS = ("effective_diffusivity",)
-_SURFACE_KEYS = ("concentration",)
-_KINETICS_OPTIONAL = {"order", "rate_basis"}
+
+class _Missing:
+    """A field the row does not give (JSON: absent; CSV: an empty cell)."""
+
+    def __repr__(self):
+        return "MISSING"
+
+
+MISSING = _Missing()
+
+# The fields a fast-path row may give; anything else sends the row to the schema.
+_FAST_FIELDS = {
+    "pellet.shape", "pellet.exposed_faces", "kinetics.model", "kinetics.order",
+    "kinetics.rate_constant", "kinetics.rate_basis", "transport.effective_diffusivity",
+    "surface.concentration", "options.profile_points",
+} | {f"pellet.{d}" for spec in SHAPES.values() if spec.shape_exponent is not None
+     for d in spec.dimensions}
+_SCALARS = (str, int, float, bool)  # hashable JSON scalars (lists and objects are not)
+_FAST_SHAPES = tuple(name for name, spec in SHAPES.items() if spec.shape_exponent is not None)
 
 
 @dataclass
@@ -47,54 +65,134 @@ class FastGroup:
                          self.surface_concentration[mask])
 
 
-def _signature(case) -> tuple | None:
-    """A hashable description of a row's structure, or None if it is not fast-path shaped."""
-    if type(case) is not dict:
-        return None
-    try:
-        pellet, kinetics = case["pellet"], case["kinetics"]
-        transport, surface = case["transport"], case["surface"]
-        options = case.get("options")
-    except (KeyError, TypeError):
-        return None
-    if len(case) != 4 + ("options" in case):
-        return None
-    if type(pellet) is not dict or type(kinetics) is not dict:
-        return None
-    if type(transport) is not dict or type(surface) is not dict:
-        return None
-    if options is not None and (type(options) is not dict or set(options) - {"profile_points"}):
-        return None
-    shape = pellet.get("shape")
-    if type(shape) is not str or shape not in SHAPES or SHAPES[shape].shape_exponent is None:
-        return None
-    if kinetics.get("model") != "power_law":
-        return None
-    return (shape, tuple(pellet), tuple(kinetics), tuple(transport), tuple(surface),
-            None if options is None else tuple(options))
+def flatten_cases(cases: list) -> tuple[dict[str, list], np.ndarray]:
+    """A JSON list of cases -> (dotted columns, mask of rows that cannot be flattened).
+
+    A row is flattened only when it is an object of objects; values stay as sent
+    (strings, numbers, {value, unit} objects). Other rows go to the schema whole.
+    The blocks are gathered per section first, then each field is one list
+    comprehension: a few Python steps per row instead of one per value.
+    """
+    n = len(cases)
+    odd = np.zeros(n, dtype=bool)
+    sections: dict[str, list] = {}
+    for i, case in enumerate(cases):
+        if type(case) is not dict:
+            odd[i] = True
+            continue
+        for section, block in case.items():
+            if type(block) is not dict:
+                odd[i] = True
+                break
+            blocks = sections.get(section)
+            if blocks is None:
+                blocks = sections[section] = [None] * n
+            blocks[i] = block
+    columns: dict[str, list] = {}
+    for section, blocks in sections.items():
+        names = set().union(*[b for b in blocks if b is not None])
+        for name in names:
+            columns[f"{section}.{name}"] = [
+                MISSING if b is None else b.get(name, MISSING) for b in blocks]
+    return columns, odd
 
 
-def _structure_ok(signature: tuple) -> bool:
-    shape, pellet_keys, kinetics_keys, transport_keys, surface_keys, _options = signature
-    spec = SHAPES[shape]
-    required = set(spec.dimensions) | {"shape"}
-    # optional fields without a default (a length) turn a 1-D shape into a 2-D one
-    allowed = required | {name for name, default in spec.optional.items() if default is not None}
-    pk = set(pellet_keys)
-    kk = set(kinetics_keys)
-    return (
-        required <= pk <= allowed
-        and {"model", "rate_constant"} <= kk <= {"model", "rate_constant"} | _KINETICS_OPTIONAL
-        and tuple(transport_keys) == _TRANSPORT_KEYS
-        and tuple(surface_keys) == _SURFACE_KEYS
-    )
+def row_case(columns: dict[str, list], index: int) -> dict:
+    """The nested case of one row, rebuilt from the columns (for the schema path)."""
+    case: dict = {}
+    for key, column in columns.items():
+        value = column[index]
+        if value is MISSING:
+            continue
+        node = case
+        *sections, name = key.split(".")
+        for section in sections:
+            node = node.setdefault(section, {})
+        node[name] = value
+    return case
 
 
-def _quantity_column(values: list, rule_name: str) -> tuple[np.ndarray, np.ndarray]:
-    """SI values and a mask of rows that failed (to be re-read by the schema)."""
-    rule = FIELD_RULES[rule_name]
-    out, bad = units.parse_quantities(values, rule.unit)
-    return out, bad | _range_violation(out, rule)
+def _present(column: list | None, n: int) -> np.ndarray:
+    if column is None:
+        return np.zeros(n, dtype=bool)
+    return np.array([v is not MISSING for v in column], dtype=bool)
+
+
+def _equals(column: list | None, n: int, allowed: tuple) -> np.ndarray:
+    """Rows whose value is MISSING or equal (same JSON type) to one of ``allowed``."""
+    if column is None:
+        return np.ones(n, dtype=bool)
+    pairs = {(type(a), a) for a in allowed}
+    return np.array([(v is MISSING) or (type(v) in _SCALARS and (type(v), v) in pairs)
+                     for v in column], dtype=bool)
+
+
+def _first_order(column: list | None, n: int) -> np.ndarray:
+    if column is None:
+        return np.ones(n, dtype=bool)
+    return np.array([(v is MISSING) or (type(v) in (int, float) and v == 1) for v in column],
+                    dtype=bool)
+
+
+def _profile_points_ok(column: list | None, n: int) -> np.ndarray:
+    if column is None:
+        return np.ones(n, dtype=bool)
+    rule = FIELD_RULES["options.profile_points"]
+    return np.fromiter(
+        ((v is MISSING) or (type(v) in (int, float) and math.isfinite(v) and v == int(v)
+                            and rule.range_error(v) is None) for v in column),
+        dtype=bool, count=n)
+
+
+def fast_path_columns(columns: dict[str, list], n: int,
+                      odd: np.ndarray | None = None) -> tuple[list[FastGroup], list[int]]:
+    """Split rows into fast-path groups (validated, SI) and the rest (row indices)."""
+    eligible = np.ones(n, dtype=bool) if odd is None else ~odd
+    for key, column in columns.items():
+        if key not in _FAST_FIELDS:
+            eligible &= ~_present(column, n)
+    shape_column = columns.get("pellet.shape")
+    if shape_column is None:
+        return [], list(range(n))
+    eligible &= _equals(columns.get("kinetics.model"), n, ("power_law",)) & _present(
+        columns.get("kinetics.model"), n)
+    eligible &= _first_order(columns.get("kinetics.order"), n)
+    eligible &= _equals(columns.get("kinetics.rate_basis"), n, ("pellet_volume",))
+    eligible &= _profile_points_ok(columns.get("options.profile_points"), n)
+    for key in ("kinetics.rate_constant", "transport.effective_diffusivity", "surface.concentration"):
+        eligible &= _present(columns.get(key), n)
+    shapes = np.array([v if type(v) is str else "" for v in shape_column], dtype=object)
+    groups: list[FastGroup] = []
+    for shape in _FAST_SHAPES:
+        spec = SHAPES[shape]
+        mask = eligible & (shapes == shape)
+        for other in _FAST_FIELDS:
+            if other.startswith("pellet.") and other not in ("pellet.shape",):
+                name = other.split(".", 1)[1]
+                if name in spec.dimensions:
+                    mask &= _present(columns.get(other), n)
+                elif name not in spec.optional or spec.optional[name] is None:
+                    mask &= ~_present(columns.get(other), n)
+        rows = np.flatnonzero(mask)
+        if len(rows):
+            group = _convert_group(shape, rows, columns)
+            if group is not None:
+                groups.append(group)
+    accepted = np.zeros(n, dtype=bool)
+    for group in groups:
+        accepted[group.rows] = True
+    return groups, np.flatnonzero(~accepted).tolist()
+
+
+def _take(columns: dict[str, list], key: str, rows: list[int]) -> list:
+    column = columns[key]
+    return [column[i] for i in rows]
+
+
+def _quantity(columns, key, rows, si_unit=None):
+    rule = FIELD_RULES[key]
+    values, bad = units.parse_quantities(_take(columns, key, rows), si_unit or rule.unit)
+    return values, bad | _range_violation(values, rule)
 
 
 def _range_violation(values: np.ndarray, rule) -> np.ndarray:
@@ -107,93 +205,47 @@ def _range_violation(values: np.ndarray, rule) -> np.ndarray:
     return bad | np.isnan(values)
 
 
-def _choice_ok(values: list, rule_name: str) -> np.ndarray:
-    rule = FIELD_RULES[rule_name]
-    allowed = {(type(c), c) for c in rule.choices}
-    return np.array([(type(v), v) in allowed for v in values], dtype=bool)
-
-
-def fast_path(cases: list) -> tuple[list[FastGroup], list[int]]:
-    """Split batch rows into fast-path groups (validated, SI) and the rest (row indices)."""
-    groups: dict[tuple, list[int]] = {}
-    rest: list[int] = []
-    for index, case in enumerate(cases):
-        signature = _signature(case)
-        if signature is None:
-            rest.append(index)
-        else:
-            groups.setdefault(signature, []).append(index)
-    fast: list[FastGroup] = []
-    for signature, indices in groups.items():
-        if not _structure_ok(signature):
-            rest.extend(indices)
-            continue
-        group = _validate_group(signature, [cases[i] for i in indices], np.array(indices))
-        if group is None:
-            rest.extend(indices)
-            continue
-        accepted, rejected = group
-        rest.extend(rejected)
-        if accepted is not None:
-            fast.append(accepted)
-    rest.sort()
-    return fast, rest
-
-
-def _validate_group(signature, rows: list, indices: np.ndarray):
-    shape, pellet_keys, kinetics_keys, _t, _s, options_keys = signature
+def _convert_group(shape: str, rows: np.ndarray, columns: dict[str, list]) -> FastGroup | None:
     spec = SHAPES[shape]
-    bad = np.zeros(len(rows), dtype=bool)
+    index = rows.tolist()
+    bad = np.zeros(len(index), dtype=bool)
     dimensions = {}
     for name in spec.dimensions:
-        column, failed = _quantity_column([r["pellet"][name] for r in rows], f"pellet.{name}")
-        dimensions[name] = column
+        dimensions[name], failed = _quantity(columns, f"pellet.{name}", index)
         bad |= failed
     for name, default in spec.optional.items():
         if default is None:
-            continue  # excluded from the fast path by _structure_ok
-        if name in pellet_keys:
-            values = [r["pellet"][name] for r in rows]
-            bad |= ~_choice_ok(values, f"pellet.{name}")
+            continue
+        key = f"pellet.{name}"
+        if key in columns:
+            values = [default if v is MISSING else v for v in _take(columns, key, index)]
+            allowed = {(type(c), c) for c in FIELD_RULES[key].choices}
+            bad |= ~np.array([type(v) in _SCALARS and (type(v), v) in allowed for v in values],
+                             dtype=bool)
             dimensions[name] = np.array([v if type(v) is int else 0 for v in values])
         else:
-            dimensions[name] = np.full(len(rows), default)
-    kinetics = [r["kinetics"] for r in rows]
-    if "order" in kinetics_keys:
-        orders = [k["order"] for k in kinetics]
-        bad |= ~np.array([type(o) in (int, float) and o == 1 for o in orders], dtype=bool)
-    if "rate_basis" in kinetics_keys:
-        bad |= ~np.array([k["rate_basis"] == "pellet_volume" for k in kinetics], dtype=bool)
-    rate_constant, k_bad = units.parse_quantities([k["rate_constant"] for k in kinetics], "1/s")
-    bad |= k_bad | _range_violation(rate_constant, FIELD_RULES["kinetics.rate_constant"])
-    diffusivity, failed = _quantity_column(
-        [r["transport"]["effective_diffusivity"] for r in rows], "transport.effective_diffusivity"
-    )
+            dimensions[name] = np.full(len(index), default)
+    # first order on a pellet-volume basis: k in 1/s
+    rate_constant, failed = _quantity(columns, "kinetics.rate_constant", index, "1/s")
     bad |= failed
-    concentration, failed = _quantity_column(
-        [r["surface"]["concentration"] for r in rows], "surface.concentration"
-    )
+    diffusivity, failed = _quantity(columns, "transport.effective_diffusivity", index)
     bad |= failed
-    if options_keys:
-        points_rule = FIELD_RULES["options.profile_points"]
-        points = [r["options"]["profile_points"] for r in rows]
-        bad |= ~np.array(
-            [type(p) in (int, float) and not isinstance(p, bool) and math.isfinite(p)
-             and p == int(p) and points_rule.range_error(p) is None for p in points],
-            dtype=bool,
-        )
+    concentration, failed = _quantity(columns, "surface.concentration", index)
+    bad |= failed
     good = ~bad
-    rejected = indices[bad].tolist()
     if not good.any():
-        return None, rejected
-    return (
-        FastGroup(
-            shape=shape,
-            rows=indices[good],
-            dimensions={name: values[good] for name, values in dimensions.items()},
-            rate_constant=rate_constant[good],
-            effective_diffusivity=diffusivity[good],
-            surface_concentration=concentration[good],
-        ),
-        rejected,
+        return None
+    return FastGroup(
+        shape=shape,
+        rows=rows[good],
+        dimensions={name: values[good] for name, values in dimensions.items()},
+        rate_constant=rate_constant[good],
+        effective_diffusivity=diffusivity[good],
+        surface_concentration=concentration[good],
     )
+
+
+def fast_path(cases: list) -> tuple[list[FastGroup], list[int]]:
+    """Fast-path groups and the remaining row indices of a JSON list of cases."""
+    columns, odd = flatten_cases(cases)
+    return fast_path_columns(columns, len(cases), odd)

@@ -1,9 +1,8 @@
-"""CSV batch input -> case dicts (the same nested form as a JSON case).
+"""CSV batch input -> dotted columns holding the values a JSON case would carry.
 
 The header holds dotted field names, each optionally with a unit in brackets:
 ``pellet.radius [mm]``. A cell of a column with a header unit is a number in that
-unit (converted to SI here, with the very conversion the schemas use), or a
-string carrying its own unit. Empty cells mean "not given".
+unit, or a string carrying its own unit. Empty cells mean "not given".
 """
 
 from __future__ import annotations
@@ -13,6 +12,7 @@ import io
 import re
 
 from .. import units
+from .columnar import MISSING
 from .query import _plain
 from .rules import FIELD_RULES
 
@@ -43,22 +43,27 @@ def _columns(header: list[str]) -> list[tuple[list[str], str, str | None, tuple 
         if rule is None:
             raise CsvProblem("unknown column (not a field of a case)", field=name)
         conversion = None
-        if unit is not None and rule.kind == "quantity" and rule.unit is None:
-            conversion = "append"  # unit depends on other fields: the schema converts
-        elif unit is not None:
+        if unit is not None:
             if rule.kind != "quantity":
                 raise CsvProblem("this column takes no unit in the header", field=name)
-            try:
-                conversion = units.conversion(unit, rule.unit)
-            except units.QuantityError as exc:
-                raise CsvProblem(f"header unit: {exc}", field=name) from None
+            if rule.unit is not None:  # else the unit depends on other fields (rate constant)
+                try:
+                    conversion = units.conversion(unit, rule.unit)
+                except units.QuantityError as exc:
+                    raise CsvProblem(f"header unit: {exc}", field=name) from None
         columns.append((name.split("."), name, unit, conversion))
     return columns
 
 
-def read_csv_cases(raw: bytes, max_rows: int) -> tuple[list, int]:
-    """(cases, row count) from CSV bytes. A ragged row becomes a string, so the
-    schema reports it as a bad row; CsvProblem for an unreadable file or header."""
+def read_csv_columns(raw: bytes, max_rows: int) -> tuple[dict[str, list], int, dict[int, str]]:
+    """(dotted columns, row count, {row: problem}) from CSV bytes.
+
+    Cells become the values a JSON case would carry: a quantity cell without its own
+    unit gets the header's unit appended ("1.5" under ``[mm]`` reads "1.5 mm"), plain
+    numbers and integer choices are converted by the field table, an empty cell is
+    MISSING. A ragged row is reported by its index; CsvProblem for an unreadable file
+    or header.
+    """
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
@@ -71,37 +76,28 @@ def read_csv_cases(raw: bytes, max_rows: int) -> tuple[list, int]:
     rows = [r for r in rows if any(cell.strip() for cell in r)]
     if not rows:
         raise CsvProblem("the CSV has no header row", malformed=True)
-    columns = _columns(rows[0])
+    header = _columns(rows[0])
     data = rows[1:]
-    if len(data) > max_rows:
-        return [], len(data)
-    width = len(columns)
-    cases = []
-    for row in data:
-        if len(row) != width:
-            cases.append(f"row has {len(row)} cells; the header has {width}")
-            continue
-        case: dict = {}
-        for (path, name, unit, conversion), cell in zip(columns, row):
-            cell = cell.strip()
-            if cell == "":
-                continue
-            node = case
-            for part in path[:-1]:
-                node = node.setdefault(part, {})
-            node[path[-1]] = _cell_value(name, cell, unit, conversion)
-        cases.append(case)
-    return cases, len(data)
+    n = len(data)
+    if n > max_rows:
+        return {}, n, {}
+    width = len(header)
+    ragged = {i: f"row has {len(row)} cells; the header has {width}"
+              for i, row in enumerate(data) if len(row) != width}
+    if ragged:
+        data = [row if i not in ragged else [""] * width for i, row in enumerate(data)]
+    columns: dict[str, list] = {}
+    for (path, name, unit, conversion), cells in zip(header, zip(*data) if data else [()] * width):
+        columns[name] = [_cell_value(name, cell.strip(), unit) for cell in cells]
+    return columns, n, ragged
 
 
-def _cell_value(name: str, cell: str, unit: str | None, conversion):
-    if conversion is None:
+def _cell_value(name: str, cell: str, unit: str | None):
+    if cell == "":
+        return MISSING
+    if unit is None:
         return _plain(name, cell)
-    if conversion == "append":
-        return f"{cell} {unit}"
-    try:
-        number = float(cell)
-    except ValueError:
+    match = units.NUMBER_PATTERN.match(cell)
+    if match is None or match.group(2):
         return cell  # carries its own unit, or is garbage: the schema says which
-    multiplier, divisor, offset = conversion
-    return number * multiplier / divisor + offset  # units.to_si's arithmetic: identical values
+    return f"{cell} {unit}"

@@ -122,7 +122,7 @@ def _random_rows(n, seed):
         if shape == "slab":
             pellet["thickness"] = rng.choice(radii)
             if rng.random() < 0.5:
-                pellet["exposed_faces"] = rng.choice([1, 2, 2.0, "2", 3])
+                pellet["exposed_faces"] = rng.choice([1, 2, 2.0, "2", 3, [2], {"n": 2}, None])
         else:
             pellet["radius"] = rng.choice(radii)
         kinetics = {"model": "power_law", "rate_constant": rng.choice(ks)}
@@ -130,7 +130,7 @@ def _random_rows(n, seed):
         if order is not None:
             kinetics["order"] = order
         if rng.random() < 0.2:
-            kinetics["rate_basis"] = rng.choice(["pellet_volume", "catalyst_mass", "x"])
+            kinetics["rate_basis"] = rng.choice(["pellet_volume", "catalyst_mass", "x", ["x"], None])
         row = {"pellet": pellet, "kinetics": kinetics,
                "transport": {"effective_diffusivity": rng.choice(des)},
                "surface": {"concentration": rng.choice(cs)}}
@@ -138,6 +138,10 @@ def _random_rows(n, seed):
             row["options"] = {"profile_points": rng.choice([0, 3, 2.0, -1, "3"])}
         if rng.random() < 0.05:
             row["extra"] = 1
+        if rng.random() < 0.03:
+            row["surface"] = rng.choice([None, [], "40"])
+        if rng.random() < 0.03:
+            row = rng.choice([None, 7, "case", [row]])
         rows.append(row)
     return rows
 

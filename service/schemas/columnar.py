@@ -148,20 +148,26 @@ def fast_path_columns(columns: dict[str, list], n: int,
                       odd: np.ndarray | None = None) -> tuple[list[FastGroup], list[int]]:
     """Split rows into fast-path groups (validated, SI) and the rest (row indices)."""
     eligible = np.ones(n, dtype=bool) if odd is None else ~odd
-    for key, column in columns.items():
+    present = {key: _present(column, n) for key, column in columns.items()}
+    absent = np.zeros(n, dtype=bool)
+
+    def given(key):
+        return present.get(key, absent)
+
+    for key in columns:
         if key not in _FAST_FIELDS:
-            eligible &= ~_present(column, n)
+            eligible &= ~given(key)
     shape_column = columns.get("pellet.shape")
     if shape_column is None:
         return [], list(range(n))
-    eligible &= _equals(columns.get("kinetics.model"), n, ("power_law",)) & _present(
-        columns.get("kinetics.model"), n)
+    eligible &= _equals(columns.get("kinetics.model"), n, ("power_law",)) & given("kinetics.model")
     eligible &= _first_order(columns.get("kinetics.order"), n)
     eligible &= _equals(columns.get("kinetics.rate_basis"), n, ("pellet_volume",))
     eligible &= _profile_points_ok(columns.get("options.profile_points"), n)
     for key in ("kinetics.rate_constant", "transport.effective_diffusivity", "surface.concentration"):
-        eligible &= _present(columns.get(key), n)
+        eligible &= given(key)
     shapes = np.array([v if type(v) is str else "" for v in shape_column], dtype=object)
+    eligible &= np.isin(shapes, _FAST_SHAPES)
     groups: list[FastGroup] = []
     for shape in _FAST_SHAPES:
         spec = SHAPES[shape]
@@ -170,9 +176,9 @@ def fast_path_columns(columns: dict[str, list], n: int,
             if other.startswith("pellet.") and other not in ("pellet.shape",):
                 name = other.split(".", 1)[1]
                 if name in spec.dimensions:
-                    mask &= _present(columns.get(other), n)
+                    mask &= given(other)
                 elif name not in spec.optional or spec.optional[name] is None:
-                    mask &= ~_present(columns.get(other), n)
+                    mask &= ~given(other)
         rows = np.flatnonzero(mask)
         if len(rows):
             group = _convert_group(shape, rows, columns)

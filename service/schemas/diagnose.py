@@ -84,8 +84,15 @@ def load_diagnose(body: dict) -> DiagnoseRequest:
     errors: dict = {}
     kinetics = case_body.get("kinetics")
     if isinstance(kinetics, dict):
+        refused = {}
         if "rate_constant" in kinetics:
-            errors["kinetics"] = {"rate_constant": [RATE_CONSTANT_REFUSED]}
+            refused["rate_constant"] = [RATE_CONSTANT_REFUSED]
+        for name in ("rate_basis", "pellet_density"):
+            if name in kinetics:  # they qualify a given rate constant; here k is the answer
+                refused[name] = ["not accepted here: the rate constant is what is sought; give "
+                                 "observed_rate_basis and pellet_density for a per-mass rate"]
+        if refused:
+            errors["kinetics"] = refused
         case_body["kinetics"] = {**kinetics, "rate_constant": PLACEHOLDER_RATE_CONSTANT}
     observed = case = None
     try:

@@ -687,6 +687,32 @@ def _z_grid(prob, phi=None):
     return np.concatenate((near, [lin], lin + _linear_log_growth(prob.m, math.sqrt(a) * s1)[0]))
 
 
+def _refine_turning_points(prob, zs, d, phi, mismatch, scan_options, points=33):
+    """Seeds from a finer scan around each turning point of the mismatch d(z).
+
+    Near a fold two states lie close together: a coarse grid can step over both (no
+    sign change between neighbours), or give two seeds so close that Newton lands both
+    on one state. Wherever d has a local extremum near zero (|d| below a tenth of the
+    largest neighbouring step), the interval of its two neighbours is scanned again on
+    ``points`` shots and every sign change there seeds the Newton solver.
+    """
+    seeds = []
+    for k in range(1, len(zs) - 1):
+        turning = (d[k] - d[k - 1]) * (d[k + 1] - d[k]) < 0
+        step = max(abs(d[k] - d[k - 1]), abs(d[k + 1] - d[k]))
+        if not turning or abs(d[k]) > 10.0 * step:
+            continue
+        prob.check_time()
+        fine = np.linspace(zs[k - 1], zs[k + 1], points)
+        out = _scan(prob, fine, **scan_options)
+        df = mismatch(out)
+        for j in range(points - 1):
+            if df[j] == 0 or df[j] * df[j + 1] < 0:
+                w = df[j] / (df[j] - df[j + 1])
+                seeds.append(_shot_seed(prob, out[3], j, j + 1, w, phi))
+    return seeds
+
+
 def _find_states(prob, phi):
     """All steady states; returns (list of state dicts, search label, failures)."""
     zs = _z_grid(prob, None if prob.bi_m is None else phi)
@@ -702,16 +728,23 @@ def _find_states(prob, phi):
             if d[k] == 0 or d[k] * d[k + 1] < 0:
                 w = d[k] / (d[k] - d[k + 1])
                 seeds.append(_shot_seed(prob, hist, k, k + 1, w, phi))
+        seeds += _refine_turning_points(prob, zs, d, phi, lambda out: out[0] - phi, {})
         search = "scan"
     elif not prob.thermal or prob.ratio == 1.0:
         end_s, end_v, end_p, hist = _scan(prob, zs, s_stop=phi)
         y = np.exp(end_v)
         ue = prob.norm.u_eq
-        d = np.where(end_s >= phi * (1 - 1e-12), phi * y * end_p - prob.bi_m * (1 - ue - y), 1.0)
+        def robin(out):
+            y_ = np.exp(out[1])
+            return np.where(out[0] >= phi * (1 - 1e-12),
+                            phi * y_ * out[2] - prob.bi_m * (1 - ue - y_), 1.0)
+
+        d = robin((end_s, end_v, end_p))
         for k in range(len(zs) - 1):
             if d[k] == 0 or d[k] * d[k + 1] < 0:
                 w = d[k] / (d[k] - d[k + 1])
                 seeds.append(_shot_seed(prob, hist, k, k + 1, w, phi))
+        seeds += _refine_turning_points(prob, zs, d, phi, robin, {"s_stop": phi})
         search = "scan"
     else:
         # thermal film with Bi_m != Bi_h: states of the Bi_m = Bi_h problem (exact scan above),

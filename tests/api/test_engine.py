@@ -173,3 +173,20 @@ def test_tiny_budget_gives_503_and_a_batch_row_503(app):
     first_order = _case({"model": "power_law", "order": 1, "rate_constant": 12.0})
     body = client.post("/v1/effectiveness/batch", json={"cases": [first_order, case]}).get_json()
     assert [r["status"] for r in body["results"]] == [200, 503]
+
+
+def test_states_close_to_the_fold_are_all_found(client):
+    # Just past the upper fold of the S-curve (Weisz & Hicks 1962, gamma = 20, beta = 0.3) the
+    # unstable and the upper stable state lie close together; a coarse scan of the centre value
+    # can merge them. Reference: the independent solve_ivp shooting above.
+    k = 0.39445
+    phi2 = (1.5e-3) ** 2 * k / 1.2e-6
+    case = _case({"model": "power_law", "order": 1, "rate_constant": k}, radius="1.5 mm", de=1.2e-6,
+                 thermal={"prater_number": 0.3, "arrhenius_number": 20})
+    states = client.post("/v1/effectiveness", json=case).get_json()["steady_states"]
+    beta, gamma = 0.3, 20.0
+    reference = _shoot_sphere(phi2, lambda u: u * np.exp(gamma * beta * (1 - u) / (1 + beta * (1 - u))))
+    assert len(reference) == 3
+    assert [s["stable"] for s in states] == [True, False, True]
+    for state, eta in zip(states, reference):
+        assert state["effectiveness_factor"] == pytest.approx(eta, rel=1e-5)

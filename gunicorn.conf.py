@@ -2,7 +2,10 @@
 
 import json
 import os
+import re
+import shutil
 import sys
+import tempfile
 from datetime import datetime, timezone
 
 from gunicorn.glogging import Logger, SafeAtoms
@@ -31,6 +34,43 @@ if worker_tmp_dir and not (os.path.isdir(worker_tmp_dir) and os.access(worker_tm
 control_socket_disable = _env("PELLET_CONTROL_SOCKET", "") == ""
 if not control_socket_disable:
     control_socket = _env("PELLET_CONTROL_SOCKET")
+# Prometheus multiprocess mode (service/metrics.py): every worker writes its samples to files in
+# PROMETHEUS_MULTIPROC_DIR and a scrape sums them. Set up here, before the app is preloaded
+# (the client picks its mode at import and the master opens its files then; no server hook
+# runs that early). Given: created if missing. Unset: a fresh directory in worker_tmp_dir or
+# the system temp dir, removed when the master exits. Emptied at master start either way.
+# Only when gunicorn reads this file (as module "__config__"): a test that reads its settings
+# must not change its own process's environment.
+_OWNED_MARK = "PELLET_METRICS_DIR_OWNED"  # set when this file created the directory
+if __name__ == "__config__":
+    if _env("PROMETHEUS_MULTIPROC_DIR"):
+        os.makedirs(os.environ["PROMETHEUS_MULTIPROC_DIR"], exist_ok=True)
+    else:
+        os.environ["PROMETHEUS_MULTIPROC_DIR"] = tempfile.mkdtemp(prefix="pellet-metrics-",
+                                                                  dir=worker_tmp_dir)
+        os.environ[_OWNED_MARK] = "1"
+
+
+def on_starting(server):
+    """Master start: empty the metrics directory (samples of an earlier run would add up)."""
+    directory = os.environ["PROMETHEUS_MULTIPROC_DIR"]
+    for name in os.listdir(directory):
+        if name.endswith(".db"):
+            os.unlink(os.path.join(directory, name))
+
+
+def child_exit(server, worker):
+    """A worker exited: drop its live-gauge files (its counters stay in the sums)."""
+    from prometheus_client import multiprocess
+
+    multiprocess.mark_process_dead(worker.pid)
+
+
+def on_exit(server):
+    if os.environ.get(_OWNED_MARK):
+        shutil.rmtree(os.environ["PROMETHEUS_MULTIPROC_DIR"], ignore_errors=True)
+
+
 accesslog = _env("PELLET_ACCESS_LOG", "-")
 errorlog = "-"
 loglevel = _env("PELLET_LOG_LEVEL", "info")
@@ -48,13 +88,44 @@ access_log_format = (
 )
 
 
+# API keys never reach the log: an api_key query parameter (PELLET_ALLOW_QUERY_KEY) in any
+# value (query, request line, referer) and the key-bearing headers, should a format name them.
+_QUERY_KEY = re.compile(r"(?i)((?:^|[?&;])api(?:_|%5f)key=)[^&;\s]*")
+_SECRET_ATOMS = frozenset({"{x-api-key}i", "{authorization}i", "{http_x_api_key}e",
+                           "{http_authorization}e", "{pellet.query_api_key}e"})
+_REDACTED = "[REDACTED]"
+
+
+def redact(value: str) -> str:
+    """``value`` with every api_key=... query value replaced by [REDACTED]."""
+    if "key" not in value.lower():
+        return value
+    return _QUERY_KEY.sub(lambda m: m.group(1) + _REDACTED, value)
+
+
+def _json_string_body(value: str) -> str:
+    """``value`` escaped for use inside a JSON string (printable ASCII is already safe)."""
+    if value.isascii() and value.isprintable() and '"' not in value and "\\" not in value:
+        return value
+    return json.dumps(value)[1:-1]
+
+
 class _JsonStringAtoms(SafeAtoms):
-    """gunicorn's atoms, every text value escaped for use inside a JSON string."""
+    """gunicorn's atoms, secrets redacted, text values escaped for a JSON string.
+
+    Only the atoms that the format names are escaped, when the format reads them: gunicorn
+    offers ~50 (every header and environ entry), and escaping all of them cost ~60 us a request.
+    """
 
     def __init__(self, atoms):
-        dict.__init__(self)
-        for key, value in atoms.items():
-            self[key] = json.dumps(value)[1:-1] if isinstance(value, str) else value
+        dict.__init__(self, atoms)
+
+    def __getitem__(self, key):
+        value = super().__getitem__(key)
+        if isinstance(value, str):
+            secret = key.lower() in _SECRET_ATOMS and value != "-"
+            value = _json_string_body(_REDACTED if secret else redact(value))
+        return value
 
 
 class JsonAccessLogger(Logger):

@@ -15,6 +15,17 @@ DEFAULTS: dict[str, object] = {
     "SOLVER_TIME_BUDGET": 5.0,
     # Version string reported by /version.
     "SERVICE_VERSION": "0.1.0",
+    # Access control (service/access.py): comma-separated API keys and/or a file of keys, one
+    # a line; empty: no key needed. Probes (/healthz, /readyz) are always open.
+    "API_KEYS": "",
+    "API_KEYS_FILE": "",
+    # Accept api_key=<key> in the query string of GET requests (spreadsheet cells). Off: keys
+    # in URLs end up in browser history, files and proxy logs.
+    "ALLOW_QUERY_KEY": False,
+    # Serve /metrics without a key even when keys are configured.
+    "METRICS_OPEN": False,
+    # CORS: comma-separated allowed origins, or "*"; empty: no CORS headers.
+    "CORS_ORIGINS": "",
 }
 
 

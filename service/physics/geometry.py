@@ -24,6 +24,7 @@ References
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import Callable
 
@@ -65,6 +66,10 @@ class ShapeSpec:
 
 
 def _positive(name: str, value):
+    if type(value) is float or type(value) is int:  # the common scalar case, without numpy
+        if not (math.isfinite(value) and value > 0):
+            raise PhysicsInputError(name, value, "must be finite and > 0")
+        return value
     arr = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
         raise PhysicsInputError(name, value, "must be finite and > 0")

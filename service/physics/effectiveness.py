@@ -118,7 +118,8 @@ def _evaluate(case: Case, time_budget: float) -> EffectivenessResult:
     result.pore = pore
     order = case.kinetic_parameters.get("order", 1.0) if case.model == "power_law" else 1.0
     result.diagnostics = regime_diagnostics(result.generalized_modulus,
-                                            result.effectiveness_factor, order=order)
+                                            result.effectiveness_factor, order=order,
+                                            regime=result.regime)
     result.diagnostics += shape_diagnostics(case, result)
     result.diagnostics += safety_diagnostics(result)
     result.diagnostics += range_diagnostics(
@@ -161,7 +162,8 @@ def _general(case: Case, geometry: PelletGeometry, time_budget: float) -> Effect
         generalized_modulus=solution.generalized_modulus,
         characteristic_length=float(geometry.characteristic_length),
         observed_rate=solution.observed_rate,
-        regime=regime_of(solution.generalized_modulus),
+        regime=regime_of(solution.generalized_modulus, solution.effectiveness_factor,
+                         heat_effects=solution.thermal is not None),
         method=solution.method,
         geometry=geometry,
         method_detail="generalized_modulus_estimate" if solution.approximated else solution.method,
@@ -265,7 +267,8 @@ def safety_diagnostics(result: EffectivenessResult) -> list[Diagnostic]:
                                        / (1.0 + th.prater_number), 700.0)))
         rise = th.maximum_temperature_rise
         if enhancement >= RATE_ENHANCEMENT_CAUTION or (rise is not None and rise >= TEMPERATURE_RISE_CAUTION):
-            rise_text = f"{rise:.4g} K" if rise is not None else f"beta = {th.prater_number:.4g} times the surface temperature"
+            rise_text = (f"{rise:.4g} K" if rise is not None else
+                         f"{100 * th.prater_number:.3g} % (of the absolute surface temperature)")
             out.append(diagnostic(
                 "LARGE_TEMPERATURE_RISE",
                 f"The pellet centre can run up to {rise_text} hotter than its surface "
@@ -359,8 +362,17 @@ def shape_diagnostics(case: Case, result: EffectivenessResult) -> list[Diagnosti
     return out
 
 
-def regime_diagnostics(generalized: float, eta: float, order: float) -> list[Diagnostic]:
+def regime_diagnostics(generalized: float, eta: float, order: float,
+                       regime: str | None = None) -> list[Diagnostic]:
     """STRONG_PORE_DIFFUSION / TRANSITION_REGIME for a generalized modulus [-]."""
+    if regime == "transition" and generalized < KINETIC_LIMIT:  # moved there by heat effects
+        return [
+            diagnostic(
+                "TRANSITION_REGIME",
+                f"Heat effects move the pellet out of the kinetic regime: eta = {eta:.4g} "
+                f"although the isothermal generalized modulus is only {generalized:.4g}.",
+            )
+        ]
     regime = regime_of(generalized)
     if regime == "diffusion":
         apparent_order = (order + 1.0) / 2.0

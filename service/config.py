@@ -13,6 +13,9 @@ DEFAULTS: dict[str, object] = {
     "MAX_BATCH_ROWS": 100_000,
     # Wall-clock budget of one numerical solve [s]; 503 beyond it. Well under gunicorn's timeout.
     "SOLVER_TIME_BUDGET": 5.0,
+    # Wall-clock budget of a whole batch's numerical rows [s]; rows past it answer 503 each.
+    # Keep it under gunicorn's timeout (PELLET_TIMEOUT, default 30 s) with room to serialize.
+    "BATCH_TIME_BUDGET": 20.0,
     # Version string reported by /version.
     "SERVICE_VERSION": "0.1.0",
     # Access control (service/access.py): comma-separated API keys and/or a file of keys, one

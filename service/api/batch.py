@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import gc
+import time
 from contextlib import contextmanager
 
 import numpy as np
@@ -72,14 +73,14 @@ def _read_batch() -> Batch:
     return batch
 
 
-def _slow_row(raw) -> dict:
-    """One row through the case schema and the general evaluation."""
+def _slow_row(raw, budget: float | None = None) -> dict:
+    """One row through the case schema and the general evaluation (solver budget [s])."""
     if not isinstance(raw, dict):
         message = raw if isinstance(raw, str) else f"expected an object, got {type(raw).__name__}"
         return {"status": 422, "errors": [{"field": "(row)", "message": message}]}
     try:
         case = CASE_SCHEMA.load(raw)
-        return {"status": 200, **result_fields(case, compute(case))}
+        return {"status": 200, **result_fields(case, compute(case, budget))}
     except ValidationError as exc:
         return {"status": 422, "errors": flatten_errors(exc.messages)}
     except PhysicsInputError as exc:
@@ -123,8 +124,20 @@ def run_batch(cases: list | Batch) -> list[dict]:
             group, columns = group.subset(columns.finite), columns.subset(columns.finite)
         for index, fields in column_rows(group, columns):
             results[index] = {"index": index, "status": 200, **fields}
+    solver_budget = current_app.config["SOLVER_TIME_BUDGET"]
+    batch_budget = current_app.config["BATCH_TIME_BUDGET"]
+    deadline = time.monotonic() + batch_budget
     for index in sorted(rest):
-        results[index] = {"index": index, **_slow_row(batch.case(index))}
+        remaining = deadline - time.monotonic()
+        if remaining <= 0:
+            results[index] = {"index": index, "status": 503, "errors": [{
+                "field": "(row)",
+                "message": f"not computed: the batch's time budget of {batch_budget:g} s was "
+                           f"used up by earlier rows; send this row again (alone or in a "
+                           f"smaller batch)"}]}
+            continue
+        results[index] = {"index": index,
+                          **_slow_row(batch.case(index), min(solver_budget, remaining))}
     return results
 
 

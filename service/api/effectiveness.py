@@ -17,9 +17,11 @@ bp = Blueprint("effectiveness", __name__, url_prefix="/v1")
 FORMATS = ("json", "csv", "value")
 
 
-def compute(case):
-    """Evaluate a case within the configured solver budget, recording solver metrics."""
-    budget = current_app.config["SOLVER_TIME_BUDGET"]
+def compute(case, budget: float | None = None):
+    """Evaluate a case within the solver budget [s] (default: the configured one),
+    recording solver metrics."""
+    if budget is None:
+        budget = current_app.config["SOLVER_TIME_BUDGET"]
     return timed_evaluate(lambda c: evaluate(c, budget), case)
 
 

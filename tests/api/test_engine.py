@@ -190,3 +190,16 @@ def test_states_close_to_the_fold_are_all_found(client):
     assert [s["stable"] for s in states] == [True, False, True]
     for state, eta in zip(states, reference):
         assert state["effectiveness_factor"] == pytest.approx(eta, rel=1e-5)
+
+
+def test_a_batch_reports_budget_exhaustion_per_row(app):
+    # Numerical rows share the batch's budget; once it is used up the remaining rows answer
+    # 503 one by one, and the closed-form rows are answered regardless.
+    app.config["BATCH_TIME_BUDGET"] = 1e-9
+    client = app.test_client()
+    numerical = _case({"model": "power_law", "order": 2, "rate_constant": 300.0})
+    first_order = _case({"model": "power_law", "order": 1, "rate_constant": 12.0})
+    body = client.post("/v1/effectiveness/batch",
+                       json={"cases": [numerical, first_order, numerical]}).get_json()
+    assert [r["status"] for r in body["results"]] == [503, 200, 503]
+    assert "time budget" in body["results"][0]["errors"][0]["message"]

@@ -732,8 +732,8 @@ def _find_states(prob, phi):
         search = "scan"
     elif not prob.thermal or prob.ratio == 1.0:
         end_s, end_v, end_p, hist = _scan(prob, zs, s_stop=phi)
-        y = np.exp(end_v)
         ue = prob.norm.u_eq
+
         def robin(out):
             y_ = np.exp(out[1])
             return np.where(out[0] >= phi * (1 - 1e-12),

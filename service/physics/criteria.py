@@ -45,6 +45,7 @@ from typing import Callable
 import numpy as np
 from scipy import optimize
 
+from .checks import nonnegative_float, positive_float
 from .errors import PhysicsInputError
 
 GAS_CONSTANT = 8.314462618  # R_g [J/(mol K)]
@@ -74,18 +75,8 @@ def _criterion(name, value, threshold, source) -> Criterion:
                      "pass" if value < threshold else "fail", source)
 
 
-def _positive(name, value) -> float:
-    x = float(value)
-    if not math.isfinite(x) or x <= 0:
-        raise PhysicsInputError(name, value, "must be finite and > 0")
-    return x
-
-
-def _nonnegative(name, value) -> float:
-    x = float(value)
-    if not math.isfinite(x) or x < 0:
-        raise PhysicsInputError(name, value, "must be finite and >= 0")
-    return x
+_positive = positive_float
+_nonnegative = nonnegative_float
 
 
 def weisz_prater_modulus(observed_rate, length, effective_diffusivity, surface_concentration):

@@ -37,6 +37,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .diagnostics import Diagnostic, diagnostic
+from .checks import positive_array, scalar_or_array
 from .errors import PhysicsInputError
 from .species import Species
 
@@ -53,15 +54,8 @@ TORTUOSITY_COMMON_RANGE = (1.5, 8.0)
 ASSOCIATION_FACTORS = {"water": 2.6, "methanol": 1.9, "ethanol": 1.5, "unassociated": 1.0}
 
 
-def _positive(name: str, value):
-    arr = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise PhysicsInputError(name, value, "must be finite and > 0")
-    return arr
-
-
-def _out(value, *templates):
-    return float(value) if all(np.ndim(t) == 0 for t in templates) else value
+_positive = positive_array
+_out = scalar_or_array
 
 
 def binary_gas_diffusivity(temperature, pressure, molar_mass_a, molar_mass_b,

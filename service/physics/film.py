@@ -41,17 +41,14 @@ from typing import Callable
 import numpy as np
 
 from .diagnostics import WARNING_CODES, Diagnostic
+from .checks import positive_float, scalar_or_array
 from .errors import PhysicsInputError
 
 # Code emitted here (severity, meaning); to be listed in diagnostics.WARNING_CODES.
 FILM_WARNING_CODES = {"CORRELATION_OUT_OF_RANGE": WARNING_CODES["CORRELATION_OUT_OF_RANGE"]}
 
 
-def _positive(name: str, value) -> float:
-    x = float(value)
-    if not np.isfinite(x) or x <= 0:
-        raise PhysicsInputError(name, value, "must be finite and > 0")
-    return x
+_positive = positive_float
 
 
 def _voidage(value) -> float:
@@ -357,8 +354,7 @@ def _film_ratio(eta, modulus, biot):
     return eta * modulus * modulus / biot  # biot = inf gives 0
 
 
-def _out(value, *templates):
-    return float(value) if all(np.ndim(t) == 0 for t in templates) else value
+_out = scalar_or_array
 
 
 def overall_effectiveness_first_order(eta, modulus, biot_number):

@@ -30,6 +30,7 @@ from typing import Callable
 
 import numpy as np
 
+from .checks import positive_array
 from .errors import PhysicsInputError
 
 
@@ -70,9 +71,7 @@ def _positive(name: str, value):
         if not (math.isfinite(value) and value > 0):
             raise PhysicsInputError(name, value, "must be finite and > 0")
         return value
-    arr = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise PhysicsInputError(name, value, "must be finite and > 0")
+    positive_array(name, value)
     return value
 
 

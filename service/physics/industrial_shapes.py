@@ -46,6 +46,7 @@ from scipy import interpolate, special
 
 from .closed_form import effectiveness_first_order_cylinder, effectiveness_first_order_slab
 from .cross_section import solve_cross_section
+from .checks import positive_array, scalar_or_array
 from .errors import PhysicsInputError
 from .geometry import PelletGeometry
 
@@ -68,11 +69,7 @@ __all__ = [
 
 
 # --------------------------------------------------------------------------- inputs
-def _positive(name, value) -> np.ndarray:
-    arr = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise PhysicsInputError(name, value, "must be finite and > 0")
-    return arr
+_positive = positive_array
 
 
 def _modulus(name, value) -> np.ndarray:
@@ -82,8 +79,7 @@ def _modulus(name, value) -> np.ndarray:
     return arr
 
 
-def _out(arr, template):
-    return float(arr) if np.ndim(template) == 0 else arr
+_out = scalar_or_array
 
 
 # --------------------------------------------------------------------------- geometry

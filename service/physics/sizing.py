@@ -27,18 +27,12 @@ from typing import Callable, Iterable
 import numpy as np
 
 from .criteria import INVERSION_STATUS, invert_monotone
+from .checks import positive_array, scalar_or_array
 from .errors import PhysicsInputError
 
 
-def _positive(name, value):
-    arr = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise PhysicsInputError(name, value, "must be finite and > 0")
-    return arr
-
-
-def _out(value, *templates):
-    return float(value) if all(np.ndim(t) == 0 for t in templates) else value
+_positive = positive_array
+_out = scalar_or_array
 
 
 def ergun_pressure_gradient(superficial_velocity, density, viscosity, voidage,

@@ -13,7 +13,7 @@ from ..physics.case import Case, FilmInput, ThermalInput
 from ..physics.kinetics import RATE_LAWS, RateLawSpec
 from ..physics.geometry import SHAPES
 from .pore import PoreSchema
-from .fields import Choice, Integer, Number, Quantity, RawQuantity, Tagged, field_for
+from .fields import Choice, Integer, Quantity, RawQuantity, Tagged, field_for
 from .rules import FIELD_RULES
 
 RATE_BASES = FIELD_RULES["kinetics.rate_basis"].choices

@@ -3,7 +3,6 @@
 import copy
 import csv
 import io
-import math
 
 import pytest
 from fluids.packed_bed import Ergun

@@ -47,6 +47,22 @@ def make_csv(cases: list[dict]) -> bytes:
     return ("\n".join(lines) + "\n").encode()
 
 
+def make_columns(cases: list[dict]) -> dict:
+    """The same cases as a column-layout body (CSV-style header names with units)."""
+    def strip(value, unit):
+        return float(value.replace(unit, "")) if isinstance(value, str) else value
+
+    return {"columns": {
+        "pellet.shape": [c["pellet"]["shape"] for c in cases],
+        "pellet.radius [mm]": [strip(c["pellet"].get("radius"), " mm") if "radius" in c["pellet"] else None for c in cases],
+        "pellet.thickness [mm]": [strip(c["pellet"].get("thickness"), " mm") if "thickness" in c["pellet"] else None for c in cases],
+        "kinetics.model": [c["kinetics"]["model"] for c in cases],
+        "kinetics.rate_constant [1/s]": [strip(c["kinetics"]["rate_constant"], " 1/s") for c in cases],
+        "transport.effective_diffusivity [m^2/s]": [c["transport"]["effective_diffusivity"] for c in cases],
+        "surface.concentration [mol/m^3]": [c["surface"]["concentration"] for c in cases],
+    }}
+
+
 def timed(fn) -> float:
     start = time.perf_counter()
     fn()
@@ -57,6 +73,7 @@ def main() -> None:
     client = create_app({"TESTING": True}).test_client()
     cases = make_cases(ROWS)
     json_body = orjson.dumps({"cases": cases})
+    columns_body = orjson.dumps(make_columns(cases))
     csv_body = make_csv(cases)
 
     answers = {}
@@ -65,16 +82,27 @@ def main() -> None:
         answers["json"] = client.post("/v1/effectiveness/batch", data=json_body,
                                       headers={"Content-Type": "application/json"})
 
+    def post_columns():
+        answers["columns"] = client.post("/v1/effectiveness/batch?layout=columns",
+                                         data=columns_body,
+                                         headers={"Content-Type": "application/json"})
+
     def post_csv():
         answers["csv"] = client.post("/v1/effectiveness/batch", data=csv_body,
                                      headers={"Content-Type": "text/csv", "Accept": "text/csv"})
 
     post_json()  # warm caches (unit conversions, imports)
     t_json = min(timed(post_json) for _ in range(2))
+    t_columns = min(timed(post_columns) for _ in range(2))
     t_csv = min(timed(post_csv) for _ in range(2))
     # checked outside the timed region
     assert orjson.loads(answers["json"].get_data())["succeeded"] == ROWS
     assert answers["csv"].get_data().count(b"\n") == ROWS + 1
+    columns_answer = orjson.loads(answers["columns"].get_data())
+    assert columns_answer["succeeded"] == ROWS
+    rows_answer = orjson.loads(answers["json"].get_data())["results"]
+    assert columns_answer["columns"]["effectiveness_factor"][:100] == [
+        r["effectiveness_factor"] for r in rows_answer[:100]]
 
     single = cases[0]
     samples = []
@@ -82,10 +110,13 @@ def main() -> None:
         samples.append(timed(lambda: client.post("/v1/effectiveness", json=single)))
     t_single = statistics.median(samples[200:])
     per_case_batch = t_json / ROWS
-    print(f"JSON batch, {ROWS} rows: {t_json:.3f} s -> {ROWS / t_json:,.0f} cases/s")
+    print(f"JSON batch, {ROWS} rows (cases in, rows out): {t_json:.3f} s -> {ROWS / t_json:,.0f} cases/s")
+    print(f"JSON batch, {ROWS} rows (columns in and out): {t_columns:.3f} s -> "
+          f"{ROWS / t_columns:,.0f} cases/s")
     print(f"CSV batch,  {ROWS} rows: {t_csv:.3f} s -> {ROWS / t_csv:,.0f} cases/s")
     print(f"single POST median:      {t_single * 1e3:.3f} ms")
-    print(f"per-case cost ratio single/batch (JSON): {t_single / per_case_batch:.0f}")
+    print(f"per-case cost ratio single/batch (JSON rows): {t_single / per_case_batch:.0f}")
+    print(f"per-case cost ratio single/batch (JSON columns): {t_single / (t_columns / ROWS):.0f}")
 
 
 if __name__ == "__main__":

@@ -70,7 +70,9 @@ def csv_text(rows) -> str:
 
 
 def csv_response(rows, status: int = 200) -> Response:
-    return Response(csv_text(rows), status=status, mimetype="text/csv",
+    """CSV from rows of cells, or from ready CSV text."""
+    text = rows if isinstance(rows, str) else csv_text(rows)
+    return Response(text, status=status, mimetype="text/csv",
                     headers={"Content-Type": "text/csv; charset=utf-8; header=present"})
 
 

@@ -150,28 +150,58 @@ def is_valid_unit(unit: str) -> bool:
     return True
 
 
-def parse_quantities(values: list, si_unit: str) -> tuple[np.ndarray, np.ndarray]:
+def parse_quantities(values: list, si_unit: str,
+                     default_unit: str | None = None) -> tuple[np.ndarray, np.ndarray]:
     """A column of raw request values -> (SI floats, mask of values that failed).
 
     The column form of ``parse_quantity``: the same number pattern, the same cached
     conversion and the same arithmetic (value * multiplier / divisor + offset,
     elementwise IEEE double operations), so a value gives the identical float. Failed
-    entries are NaN in the result.
+    entries are NaN in the result. ``default_unit`` (a CSV or column header's unit)
+    applies to plain numbers and to strings without a unit of their own, exactly as
+    if each value had been written ``{"value": v, "unit": default_unit}``.
     """
     kinds = set(map(type, values))
     if kinds <= {float, int}:
         out = np.array(values, dtype=float)
-        return out, ~np.isfinite(out)
+        if default_unit:
+            try:
+                multiplier, divisor, offset = conversion(default_unit, si_unit)
+            except QuantityError:
+                return np.full(len(values), np.nan), np.ones(len(values), dtype=bool)
+            out = out * multiplier / divisor + offset
+        bad = ~np.isfinite(out)
+        out[bad] = np.nan
+        return out, bad
     if kinds == {str} and max(map(len, values)) <= MAX_UNIT_LENGTH + 40:
+        plain = _plain_numbers(values)
+        if plain is not None:  # "1.5" cells of a CSV column: numbers in the default unit
+            return parse_quantities(plain, si_unit, default_unit)
         matches = list(map(_NUMBER.match, values))
         if None not in matches:
-            return _convert_matches(matches, si_unit)
-    return _parse_one_by_one(values, si_unit)
+            return _convert_matches(matches, si_unit, default_unit)
+    return _parse_one_by_one(values, si_unit, default_unit)
 
 
-def _convert_matches(matches: list, si_unit: str) -> tuple[np.ndarray, np.ndarray]:
+def _plain_numbers(values: list[str]) -> list[float] | None:
+    """The floats of strings that are bare numbers, or None if any is not.
+
+    ``float`` reads every string the number pattern accepts as a whole, to the same
+    value; of what it reads beyond the pattern, underscores are excluded here and
+    nan/inf end up non-finite (rejected later either way).
+    """
+    if any("_" in v for v in values):
+        return None
+    try:
+        return list(map(float, values))
+    except ValueError:
+        return None
+
+
+def _convert_matches(matches: list, si_unit: str,
+                     default_unit: str | None) -> tuple[np.ndarray, np.ndarray]:
     numbers = np.array([float(m[1]) for m in matches])
-    unit_texts = [m[2] for m in matches]
+    unit_texts = [m[2] or default_unit or "" for m in matches]
     factors: dict[str, tuple[float, float, float] | None] = {}
     for unit in set(unit_texts):
         try:
@@ -196,12 +226,27 @@ def _convert_matches(matches: list, si_unit: str) -> tuple[np.ndarray, np.ndarra
     return out, bad
 
 
-def _parse_one_by_one(values: list, si_unit: str) -> tuple[np.ndarray, np.ndarray]:
+def with_default_unit(raw, default_unit: str | None):
+    """A raw value as the schema should read it under a header unit: a number becomes
+    {"value": v, "unit": u}, a string without a unit of its own gets ``u`` appended."""
+    if not default_unit:
+        return raw
+    if type(raw) in (int, float):
+        return {"value": raw, "unit": default_unit}
+    if type(raw) is str:
+        match = _NUMBER.match(raw)
+        if match is not None and not match.group(2):
+            return f"{raw.strip()} {default_unit}"
+    return raw
+
+
+def _parse_one_by_one(values: list, si_unit: str,
+                      default_unit: str | None = None) -> tuple[np.ndarray, np.ndarray]:
     out = np.empty(len(values))
     bad = np.zeros(len(values), dtype=bool)
     for i, raw in enumerate(values):
         try:
-            out[i] = parse_quantity(raw, si_unit)
+            out[i] = parse_quantity(with_default_unit(raw, default_unit), si_unit)
         except QuantityError:
             bad[i] = True
             out[i] = np.nan

@@ -7,6 +7,7 @@ import time
 from contextlib import contextmanager
 
 import numpy as np
+import orjson
 from flask import Blueprint, current_app, request
 from marshmallow import ValidationError
 
@@ -16,8 +17,8 @@ from ..metrics import observe_batch
 from ..physics.effectiveness import evaluate_first_order_columns
 from ..physics.errors import PhysicsInputError, SolverBudgetExceeded
 from ..schemas.case import CASE_SCHEMA, flatten_errors
-from ..schemas.columnar import fast_path_columns, flatten_cases, row_case
-from ..schemas.csv_rows import CsvProblem, read_csv_columns
+from ..schemas.columnar import MISSING, fast_path_columns, flatten_cases, row_case
+from ..schemas.csv_rows import CsvProblem, read_csv_columns, read_header
 from .effectiveness import compute
 from ..schemas.responses import OUTPUT_UNITS, column_rows, request_field, result_fields
 
@@ -33,44 +34,76 @@ class Batch:
     """The rows of one batch as dotted columns, and how to rebuild one row as a case."""
 
     def __init__(self, columns: dict, count: int, odd=None, cases: list | None = None,
-                 problems: dict | None = None):
+                 problems: dict | None = None, column_units: dict | None = None):
         self.columns, self.count, self.odd = columns, count, odd
         self.cases, self.problems = cases, problems or {}
+        self.column_units = column_units or {}
 
     def case(self, index: int):
         if index in self.problems:
             return self.problems[index]  # a string: the row's problem
         if self.cases is not None:
             return self.cases[index]
-        return row_case(self.columns, index)
+        return row_case(self.columns, index, self.column_units)
 
 
 def _read_batch() -> Batch:
     limit = current_app.config["MAX_BATCH_ROWS"]
     if request.mimetype in ("text/csv", "application/csv"):
         try:
-            columns, count, ragged = read_csv_columns(request.get_data(cache=False), limit)
+            columns, count, ragged, column_units = read_csv_columns(
+                request.get_data(cache=False), limit)
         except CsvProblem as exc:
             if exc.malformed:
                 raise ApiProblem("malformed-body", str(exc)) from None
             raise validation_problem([{"field": exc.field, "message": str(exc)}]) from None
         odd = np.zeros(count, dtype=bool)
         odd[list(ragged)] = True
-        batch = Batch(columns, count, odd, problems=ragged)
+        batch = Batch(columns, count, odd, problems=ragged, column_units=column_units)
     else:
         body = read_json_body()
-        if not isinstance(body, dict) or set(body) != {"cases"} or not isinstance(body["cases"], list):
-            raise validation_problem(
-                [{"field": "cases", "message": 'the body must be {"cases": [<case>, ...]}'}]
-            )
-        cases = body["cases"]
-        count = len(cases)
-        if count <= limit:
-            columns, odd = flatten_cases(cases)
-            batch = Batch(columns, count, odd, cases=cases)
+        if isinstance(body, dict) and set(body) == {"columns"}:
+            batch = _column_body(body["columns"], limit)
+            count = batch.count
+        elif isinstance(body, dict) and set(body) == {"cases"} and isinstance(body["cases"], list):
+            cases = body["cases"]
+            count = len(cases)
+            if count <= limit:
+                columns, odd = flatten_cases(cases)
+                batch = Batch(columns, count, odd, cases=cases)
+        else:
+            raise validation_problem([{
+                "field": "cases",
+                "message": 'the body must be {"cases": [<case>, ...]} or '
+                           '{"columns": {"<field> [unit]": [...], ...}}'}])
     if count > limit:
         raise ApiProblem("too-large", f"The batch has {count} rows; the limit is {limit}.")
     return batch
+
+
+def _column_body(raw_columns, limit: int) -> Batch:
+    """{"columns": {"pellet.radius [mm]": [...], ...}}: the CSV table as JSON arrays
+    (same header names and units; null means not given)."""
+    if not isinstance(raw_columns, dict) or not raw_columns:
+        raise validation_problem([{"field": "columns",
+                                   "message": "must be an object of equally long arrays"}])
+    try:
+        header = read_header(list(raw_columns))
+    except CsvProblem as exc:
+        raise validation_problem([{"field": f"columns.{exc.field}", "message": str(exc)}]) from None
+    lengths = {len(v) if isinstance(v, list) else -1 for v in raw_columns.values()}
+    if len(lengths) != 1 or -1 in lengths:
+        raise validation_problem([{"field": "columns",
+                                   "message": "every column must be an array of the same length"}])
+    count = lengths.pop()
+    if count > limit:
+        raise ApiProblem("too-large", f"The batch has {count} rows; the limit is {limit}.")
+    columns, column_units = {}, {}
+    for (name, unit), values in zip(header, raw_columns.values()):
+        columns[name] = [MISSING if v is None else v for v in values]
+        if unit:
+            column_units[name] = unit
+    return Batch(columns, count, np.zeros(count, dtype=bool), column_units=column_units)
 
 
 def _slow_row(raw, budget: float | None = None) -> dict:
@@ -106,39 +139,100 @@ def _collector_paused():
             gc.enable()
 
 
-def run_batch(cases: list | Batch) -> list[dict]:
-    """Answer every row: fast-path groups column-wise, every other row one by one."""
-    if not isinstance(cases, Batch):
-        columns, odd = flatten_cases(cases)
-        cases = Batch(columns, len(cases), odd, cases=cases)
-    batch = cases
-    results: list = [None] * batch.count
-    groups, rest = fast_path_columns(batch.columns, batch.count, batch.odd)
+def _as_batch(cases: list | Batch) -> Batch:
+    if isinstance(cases, Batch):
+        return cases
+    columns, odd = flatten_cases(cases)
+    return Batch(columns, len(cases), odd, cases=cases)
+
+
+def _fast_groups(batch: Batch, messages: bool):
+    """(group, column results) for the fast path, and the rows left for one-by-one."""
+    groups, rest = fast_path_columns(batch.columns, batch.count, batch.odd, batch.column_units)
+    done = []
     for group in groups:
         columns = evaluate_first_order_columns(
             group.shape, group.dimensions, group.rate_constant,
-            group.effective_diffusivity, group.surface_concentration,
+            group.effective_diffusivity, group.surface_concentration, messages=messages,
         )
         if not columns.finite.all():  # overflowing rows: the one-by-one path reports them
             rest.extend(group.rows[~columns.finite].tolist())
             group, columns = group.subset(columns.finite), columns.subset(columns.finite)
-        for index, fields in column_rows(group, columns):
-            results[index] = {"index": index, "status": 200, **fields}
+        done.append((group, columns))
+    return done, sorted(rest)
+
+
+def _slow_rows(batch: Batch, rest: list[int]):
+    """(index, result) for every remaining row, within the batch's time budget."""
     solver_budget = current_app.config["SOLVER_TIME_BUDGET"]
     batch_budget = current_app.config["BATCH_TIME_BUDGET"]
     deadline = time.monotonic() + batch_budget
-    for index in sorted(rest):
+    for index in rest:
         remaining = deadline - time.monotonic()
         if remaining <= 0:
-            results[index] = {"index": index, "status": 503, "errors": [{
+            yield index, {"status": 503, "errors": [{
                 "field": "(row)",
                 "message": f"not computed: the batch's time budget of {batch_budget:g} s was "
                            f"used up by earlier rows; send this row again (alone or in a "
                            f"smaller batch)"}]}
             continue
-        results[index] = {"index": index,
-                          **_slow_row(batch.case(index), min(solver_budget, remaining))}
+        yield index, _slow_row(batch.case(index), min(solver_budget, remaining))
+
+
+def run_batch(cases: list | Batch) -> list[dict]:
+    """Answer every row: fast-path groups column-wise, every other row one by one."""
+    batch = _as_batch(cases)
+    results: list = [None] * batch.count
+    done, rest = _fast_groups(batch, messages=True)
+    for group, columns in done:
+        for index, fields in column_rows(group, columns):
+            results[index] = {"index": index, "status": 200, **fields}
+    for index, result in _slow_rows(batch, rest):
+        results[index] = {"index": index, **result}
     return results
+
+
+COLUMN_LAYOUT_FIELDS = ("effectiveness_factor", "thiele_modulus", "thiele_length",
+                        "generalized_modulus", "characteristic_length", "observed_rate")
+
+
+def run_batch_columns(cases: list | Batch) -> dict:
+    """Answer every row in the column layout: one array per result field, rows in order,
+    null where a row failed; warnings as codes joined by ";" (no messages), errors as
+    "field: message" joined by "; "."""
+    batch = _as_batch(cases)
+    n = batch.count
+    numbers = {name: np.full(n, np.nan) for name in COLUMN_LAYOUT_FIELDS}
+    status = np.zeros(n, dtype=int)
+    texts = {name: np.full(n, None, dtype=object) for name in ("regime", "method", "warnings", "errors")}
+    done, rest = _fast_groups(batch, messages=False)
+    for group, columns in done:
+        rows = group.rows
+        for name in COLUMN_LAYOUT_FIELDS:
+            numbers[name][rows] = getattr(columns, name)
+        status[rows] = 200
+        texts["regime"][rows] = columns.regime
+        texts["method"][rows] = "closed_form"
+        texts["warnings"][rows] = columns.codes
+    for index, result in _slow_rows(batch, rest):
+        status[index] = result["status"]
+        if result["status"] == 200:
+            for name in COLUMN_LAYOUT_FIELDS:
+                value = result[name]
+                numbers[name][index] = value["value"] if isinstance(value, dict) else value
+            texts["regime"][index] = result["regime"]
+            texts["method"][index] = result["method"]
+            texts["warnings"][index] = ";".join(w["code"] for w in result["warnings"])
+        else:
+            texts["errors"][index] = "; ".join(f"{e['field']}: {e['message']}"
+                                               for e in result["errors"])
+    failed = int(np.count_nonzero(status != 200))
+    return {
+        "rows": n, "succeeded": n - failed, "failed": failed,
+        "units": {name: OUTPUT_UNITS[name] for name in COLUMN_LAYOUT_FIELDS if name in OUTPUT_UNITS},
+        "columns": {"index": np.arange(n), "status": status, **numbers,
+                    **{name: values.tolist() for name, values in texts.items()}},
+    }
 
 
 @bp.post("/effectiveness/batch")
@@ -149,36 +243,50 @@ def effectiveness_batch():
         ["application/json", "text/csv"]
     ):
         raise ApiProblem("not-acceptable", "This operation answers application/json or text/csv.")
+    layout = request.args.get("layout", "rows")
+    if layout not in ("rows", "columns") or len(request.args.getlist("layout")) > 1:
+        raise validation_problem([{"field": "layout", "message": "must be rows or columns"}])
     with _collector_paused():
         batch = _read_batch()
         observe_batch(batch.count)
+        if wants == "text/csv":
+            return csv_response(_csv_text(run_batch_columns(batch)))
+        if layout == "columns":
+            return json_response(run_batch_columns(batch))
         results = run_batch(batch)
         failed = sum(1 for r in results if r["status"] != 200)
-        if wants == "text/csv":
-            return csv_response(_csv_table(results))
         return json_response(
             {"rows": len(results), "succeeded": len(results) - failed, "failed": failed,
              "results": results}
         )
 
 
-def _csv_table(results: list[dict]) -> list[list]:
+def _csv_text(payload: dict) -> str:
+    """The column-layout answer as CSV text (header with units; empty cells where a row
+    failed). Numbers are written column-wise by orjson (shortest round-trip form), text
+    cells quoted as RFC 4180 requires."""
     header = ["index", "status"] + [
         f"{c} [{OUTPUT_UNITS[c]}]" if c in OUTPUT_UNITS else c for c in CSV_COLUMNS
     ] + ["warnings", "errors"]
-    table = [header]
-    for r in results:
-        if r["status"] == 200:
-            cells = [_plain_value(r[c]) for c in CSV_COLUMNS]
-            warnings = ";".join(w["code"] for w in r["warnings"])
-            errors = ""
-        else:
-            cells = [""] * len(CSV_COLUMNS)
-            warnings = ""
-            errors = "; ".join(f"{e['field']}: {e['message']}" for e in r["errors"])
-        table.append([r["index"], r["status"], *cells, warnings, errors])
-    return table
+    columns = payload["columns"]
+    cells = []
+    for name in ("index", "status") + CSV_COLUMNS + ("warnings", "errors"):
+        values = columns[name]
+        if isinstance(values, np.ndarray):
+            text = orjson.dumps(values, option=orjson.OPT_SERIALIZE_NUMPY)[1:-1].decode()
+            cells.append(["" if v == "null" else v for v in text.split(",")] if len(values) else [])
+        elif name == "errors":  # free text: quoted where needed
+            cells.append([_csv_cell(v) for v in values])
+        else:  # regime, method, warning codes: plain words
+            cells.append(["" if v is None else v for v in values])
+    lines = [",".join(header)] + [",".join(row) for row in zip(*cells)]
+    return "\r\n".join(lines) + "\r\n"
 
 
-def _plain_value(value):
-    return value["value"] if isinstance(value, dict) else value
+def _csv_cell(value) -> str:
+    if value is None:
+        return ""
+    text = str(value)
+    if any(c in text for c in ',"\r\n'):
+        return '"' + text.replace('"', '""') + '"'
+    return text

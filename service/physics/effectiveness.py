@@ -362,6 +362,10 @@ def shape_diagnostics(case: Case, result: EffectivenessResult) -> list[Diagnosti
     return out
 
 
+# regime -> the code of its diagnostic (kinetic has none)
+REGIME_WARNINGS = {"diffusion": "STRONG_PORE_DIFFUSION", "transition": "TRANSITION_REGIME"}
+
+
 def regime_diagnostics(generalized: float, eta: float, order: float,
                        regime: str | None = None) -> list[Diagnostic]:
     """STRONG_PORE_DIFFUSION / TRANSITION_REGIME for a generalized modulus [-]."""
@@ -428,8 +432,9 @@ class ColumnResult:
     regime: list[str]
     volume: np.ndarray | None
     external_area: np.ndarray | None
-    diagnostics: list[list[Diagnostic]]
+    diagnostics: list[list[Diagnostic]] | None  # None when only codes were asked for
     finite: np.ndarray  # rows whose results are all finite (the others are re-run one by one)
+    codes: list[str] | None = None  # per row, the warning codes joined by ";" (no messages)
 
     def subset(self, mask: np.ndarray) -> "ColumnResult":
         """The rows where ``mask`` is true."""
@@ -440,6 +445,8 @@ class ColumnResult:
                 values[name] = None
             elif isinstance(value, list):
                 values[name] = [value[i] for i in picked]
+            elif np.ndim(value) == 0:
+                values[name] = value
             else:
                 values[name] = np.asarray(value)[mask]
         return ColumnResult(**values)
@@ -451,20 +458,24 @@ def evaluate_first_order_columns(
     rate_constant: np.ndarray,
     effective_diffusivity: np.ndarray,
     surface_concentration: np.ndarray,
+    messages: bool = True,
 ) -> ColumnResult:
     """Vectorized ``evaluate`` for isothermal first-order cases of one shape.
 
     Same formulas as ``evaluate`` (one source of truth: the closed forms and the
     regime table), applied to whole columns; diagnostics built only for the rows
-    that carry one.
+    that carry one. ``messages=False`` gives only the warning codes per row (the
+    column layout of a batch), skipping the formatting of the messages.
     """
     geometry = build_geometry(shape, **dimensions)
     n = len(rate_constant)
     with np.errstate(all="ignore"):
-        return _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration)
+        return _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration,
+                        messages)
 
 
-def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration):
+def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration,
+             messages=True):
     length = np.broadcast_to(np.asarray(geometry.diffusion_length, dtype=float), (n,))
     char_length = np.broadcast_to(np.asarray(geometry.characteristic_length, dtype=float), (n,))
     phi = closed_form.thiele_modulus(length, rate_constant, effective_diffusivity)
@@ -478,9 +489,17 @@ def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentr
         "kinetic",
         np.where(generalized > DIFFUSION_LIMIT, "diffusion", "transition"),
     ).tolist()
-    diagnostics: list[list[Diagnostic]] = [[] for _ in range(n)]
     out_of_range = _out_of_range_mask(length, effective_diffusivity, surface_concentration)
-    flagged = np.flatnonzero(finite & ((generalized >= KINETIC_LIMIT) | out_of_range)).tolist()
+    codes = None
+    if not messages:
+        codes = [REGIME_WARNINGS.get(r, "") for r in regime]
+        for i in np.flatnonzero(out_of_range).tolist():
+            extra = ["INPUT_OUTSIDE_COMMON_RANGE"] * _out_of_range_count(
+                float(length[i]), float(effective_diffusivity[i]), float(surface_concentration[i]))
+            codes[i] = ";".join(([codes[i]] if codes[i] else []) + extra)
+    diagnostics: list[list[Diagnostic]] | None = [[] for _ in range(n)] if messages else None
+    flagged = [] if not messages else np.flatnonzero(
+        finite & ((generalized >= KINETIC_LIMIT) | out_of_range)).tolist()
     generalized_values, eta_values = generalized[flagged].tolist(), eta[flagged].tolist()
     for i, gen_i, eta_i in zip(flagged, generalized_values, eta_values):
         diagnostics[i] = regime_diagnostics(gen_i, eta_i, 1.0)
@@ -504,7 +523,14 @@ def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentr
         ),
         diagnostics=diagnostics,
         finite=finite,
+        codes=codes,
     )
+
+
+def _out_of_range_count(length: float, diffusivity: float, concentration: float) -> int:
+    """How many INPUT_OUTSIDE_COMMON_RANGE diagnostics ``range_diagnostics`` gives."""
+    return len(range_diagnostics(diffusion_length=length, effective_diffusivity=diffusivity,
+                                 surface_concentration=concentration))
 
 
 def _out_of_range_mask(length, diffusivity, concentration) -> np.ndarray:

@@ -97,13 +97,16 @@ def flatten_cases(cases: list) -> tuple[dict[str, list], np.ndarray]:
     return columns, odd
 
 
-def row_case(columns: dict[str, list], index: int) -> dict:
-    """The nested case of one row, rebuilt from the columns (for the schema path)."""
+def row_case(columns: dict[str, list], index: int, column_units: dict | None = None) -> dict:
+    """The nested case of one row, rebuilt from the columns (for the schema path); a
+    column's header unit is attached to the row's value as the schema reads units."""
     case: dict = {}
+    column_units = column_units or {}
     for key, column in columns.items():
         value = column[index]
         if value is MISSING:
             continue
+        value = units.with_default_unit(value, column_units.get(key))
         node = case
         *sections, name = key.split(".")
         for section in sections:
@@ -144,9 +147,14 @@ def _profile_points_ok(column: list | None, n: int) -> np.ndarray:
         dtype=bool, count=n)
 
 
-def fast_path_columns(columns: dict[str, list], n: int,
-                      odd: np.ndarray | None = None) -> tuple[list[FastGroup], list[int]]:
-    """Split rows into fast-path groups (validated, SI) and the rest (row indices)."""
+def fast_path_columns(columns: dict[str, list], n: int, odd: np.ndarray | None = None,
+                      column_units: dict | None = None) -> tuple[list[FastGroup], list[int]]:
+    """Split rows into fast-path groups (validated, SI) and the rest (row indices).
+
+    ``column_units``: a header unit per column (CSV or column-layout JSON), applied to
+    plain numbers and to strings without a unit of their own.
+    """
+    column_units = column_units or {}
     eligible = np.ones(n, dtype=bool) if odd is None else ~odd
     present = {key: _present(column, n) for key, column in columns.items()}
     absent = np.zeros(n, dtype=bool)
@@ -181,7 +189,7 @@ def fast_path_columns(columns: dict[str, list], n: int,
                     mask &= ~given(other)
         rows = np.flatnonzero(mask)
         if len(rows):
-            group = _convert_group(shape, rows, columns)
+            group = _convert_group(shape, rows, columns, column_units)
             if group is not None:
                 groups.append(group)
     accepted = np.zeros(n, dtype=bool)
@@ -195,9 +203,10 @@ def _take(columns: dict[str, list], key: str, rows: list[int]) -> list:
     return [column[i] for i in rows]
 
 
-def _quantity(columns, key, rows, si_unit=None):
+def _quantity(columns, key, rows, column_units, si_unit=None):
     rule = FIELD_RULES[key]
-    values, bad = units.parse_quantities(_take(columns, key, rows), si_unit or rule.unit)
+    values, bad = units.parse_quantities(_take(columns, key, rows), si_unit or rule.unit,
+                                         column_units.get(key))
     return values, bad | _range_violation(values, rule)
 
 
@@ -211,13 +220,14 @@ def _range_violation(values: np.ndarray, rule) -> np.ndarray:
     return bad | np.isnan(values)
 
 
-def _convert_group(shape: str, rows: np.ndarray, columns: dict[str, list]) -> FastGroup | None:
+def _convert_group(shape: str, rows: np.ndarray, columns: dict[str, list],
+                   column_units: dict) -> FastGroup | None:
     spec = SHAPES[shape]
     index = rows.tolist()
     bad = np.zeros(len(index), dtype=bool)
     dimensions = {}
     for name in spec.dimensions:
-        dimensions[name], failed = _quantity(columns, f"pellet.{name}", index)
+        dimensions[name], failed = _quantity(columns, f"pellet.{name}", index, column_units)
         bad |= failed
     for name, default in spec.optional.items():
         if default is None:
@@ -232,11 +242,13 @@ def _convert_group(shape: str, rows: np.ndarray, columns: dict[str, list]) -> Fa
         else:
             dimensions[name] = np.full(len(index), default)
     # first order on a pellet-volume basis: k in 1/s
-    rate_constant, failed = _quantity(columns, "kinetics.rate_constant", index, "1/s")
+    rate_constant, failed = _quantity(columns, "kinetics.rate_constant", index, column_units,
+                                      "1/s")
     bad |= failed
-    diffusivity, failed = _quantity(columns, "transport.effective_diffusivity", index)
+    diffusivity, failed = _quantity(columns, "transport.effective_diffusivity", index,
+                                    column_units)
     bad |= failed
-    concentration, failed = _quantity(columns, "surface.concentration", index)
+    concentration, failed = _quantity(columns, "surface.concentration", index, column_units)
     bad |= failed
     good = ~bad
     if not good.any():

@@ -28,7 +28,9 @@ class CsvProblem(ValueError):
         super().__init__(message)
 
 
-def _columns(header: list[str]) -> list[tuple[list[str], str, str | None, tuple | None]]:
+def read_header(header: list[str]) -> list[tuple[str, str | None]]:
+    """(field name, unit or None) per header cell ``name [unit]``; CsvProblem naming a bad
+    cell, an unknown or repeated field, or a unit of the wrong dimension."""
     columns = []
     seen = set()
     for cell in header:
@@ -42,27 +44,29 @@ def _columns(header: list[str]) -> list[tuple[list[str], str, str | None, tuple 
         rule = FIELD_RULES.get(name)
         if rule is None:
             raise CsvProblem("unknown column (not a field of a case)", field=name)
-        conversion = None
         if unit is not None:
             if rule.kind != "quantity":
                 raise CsvProblem("this column takes no unit in the header", field=name)
             if rule.unit is not None:  # else the unit depends on other fields (rate constant)
                 try:
-                    conversion = units.conversion(unit, rule.unit)
+                    units.conversion(unit, rule.unit)
                 except units.QuantityError as exc:
                     raise CsvProblem(f"header unit: {exc}", field=name) from None
-        columns.append((name.split("."), name, unit, conversion))
+        columns.append((name, unit))
     return columns
 
 
-def read_csv_columns(raw: bytes, max_rows: int) -> tuple[dict[str, list], int, dict[int, str]]:
-    """(dotted columns, row count, {row: problem}) from CSV bytes.
+def _numeric_choices(rule) -> bool:
+    return bool(rule.choices) and isinstance(rule.choices[0], int)
 
-    Cells become the values a JSON case would carry: a quantity cell without its own
-    unit gets the header's unit appended ("1.5" under ``[mm]`` reads "1.5 mm"), plain
-    numbers and integer choices are converted by the field table, an empty cell is
-    MISSING. A ragged row is reported by its index; CsvProblem for an unreadable file
-    or header.
+
+def read_csv_columns(raw: bytes, max_rows: int):
+    """(dotted columns, row count, {row: problem}, {column: header unit}) from CSV bytes.
+
+    Cells become the values a JSON case would carry: quantity cells stay text (read with
+    the header's unit when they have none of their own), plain numbers and integer
+    choices are converted by the field table, an empty cell is MISSING. A ragged row is
+    reported by its index; CsvProblem for an unreadable file or header.
     """
     try:
         text = raw.decode("utf-8-sig")
@@ -76,28 +80,25 @@ def read_csv_columns(raw: bytes, max_rows: int) -> tuple[dict[str, list], int, d
     rows = [r for r in rows if any(cell.strip() for cell in r)]
     if not rows:
         raise CsvProblem("the CSV has no header row", malformed=True)
-    header = _columns(rows[0])
+    header = read_header(rows[0])
     data = rows[1:]
     n = len(data)
     if n > max_rows:
-        return {}, n, {}
+        return {}, n, {}, {}
     width = len(header)
     ragged = {i: f"row has {len(row)} cells; the header has {width}"
               for i, row in enumerate(data) if len(row) != width}
     if ragged:
         data = [row if i not in ragged else [""] * width for i, row in enumerate(data)]
     columns: dict[str, list] = {}
-    for (path, name, unit, conversion), cells in zip(header, zip(*data) if data else [()] * width):
-        columns[name] = [_cell_value(name, cell.strip(), unit) for cell in cells]
-    return columns, n, ragged
-
-
-def _cell_value(name: str, cell: str, unit: str | None):
-    if cell == "":
-        return MISSING
-    if unit is None:
-        return _plain(name, cell)
-    match = units.NUMBER_PATTERN.match(cell)
-    if match is None or match.group(2):
-        return cell  # carries its own unit, or is garbage: the schema says which
-    return f"{cell} {unit}"
+    column_units: dict[str, str] = {}
+    for (name, unit), cells in zip(header, zip(*data) if data else [()] * width):
+        rule = FIELD_RULES[name]
+        stripped = [c.strip() for c in cells]
+        if rule.kind == "quantity" or (rule.kind == "choice" and not _numeric_choices(rule)):
+            columns[name] = [MISSING if c == "" else c for c in stripped]
+            if unit:
+                column_units[name] = unit
+        else:
+            columns[name] = [MISSING if c == "" else _plain(name, c) for c in stripped]
+    return columns, n, ragged, column_units

@@ -176,3 +176,78 @@ def test_columnar_and_schema_paths_agree(app, seed):
 
         expected = {"index": index, "status": 200, **result_fields(case, evaluate(case))}
         assert results[index] == expected
+
+
+COLUMNS = {
+    "pellet.shape": ["sphere", "cylinder", "slab", "sphere", "cube", "sphere"],
+    "pellet.radius [mm]": [1.5, "2", None, "0.15 cm", 1.0, 1.5],
+    "pellet.thickness [mm]": [None, None, 3, None, None, None],
+    "kinetics.model": ["power_law"] * 6,
+    "kinetics.order": [1, 1, None, 1, 1, 2],
+    "kinetics.rate_constant [1/s]": [12, 12, 12, "0.2 1/min", 12, 0.3],
+    "transport.effective_diffusivity [m^2/s]": [1.2e-6] * 6,
+    "surface.concentration [mol/m^3]": [40] * 6,
+}
+
+
+def _as_cases(columns):
+    """The same rows written as JSON cases, each value with its header unit attached."""
+    cases = []
+    for i in range(len(columns["pellet.shape"])):
+        case = {}
+        for header, values in columns.items():
+            name, _, unit = header.partition(" [")
+            value = values[i]
+            if value is None:
+                continue
+            if unit:
+                unit = unit.rstrip("]")
+                value = {"value": value, "unit": unit} if isinstance(value, (int, float)) else (
+                    value if not value.replace(".", "", 1).isdigit() else f"{value} {unit}")
+            section, field = name.split(".")
+            case.setdefault(section, {})[field] = value
+        cases.append(case)
+    return cases
+
+
+def test_column_layout_in_and_out_equals_the_row_layout(client):
+    rows = client.post("/v1/effectiveness/batch", json={"cases": _as_cases(COLUMNS)}).get_json()
+    by_columns = client.post("/v1/effectiveness/batch", json={"columns": COLUMNS}).get_json()
+    assert by_columns == rows  # column input, row output: the very same answer
+    layout = client.post("/v1/effectiveness/batch?layout=columns",
+                         json={"columns": COLUMNS}).get_json()
+    columns = layout["columns"]
+    # row 4: unknown shape; row 5: a rate constant in 1/s for order 2 (wrong dimension)
+    assert (layout["rows"], layout["succeeded"], layout["failed"]) == (6, 4, 2)
+    assert layout["units"]["observed_rate"] == "mol/(m^3*s)"
+    for i, row in enumerate(rows["results"]):
+        assert columns["index"][i] == i and columns["status"][i] == row["status"]
+        if row["status"] == 200:
+            for name in ("effectiveness_factor", "thiele_modulus", "generalized_modulus"):
+                assert columns[name][i] == row[name]
+            assert columns["observed_rate"][i] == row["observed_rate"]["value"]
+            assert columns["regime"][i] == row["regime"] and columns["method"][i] == row["method"]
+            assert columns["warnings"][i] == ";".join(w["code"] for w in row["warnings"])
+            assert columns["errors"][i] is None
+        else:
+            assert columns["effectiveness_factor"][i] is None
+            assert columns["errors"][i] == "; ".join(f"{e['field']}: {e['message']}"
+                                                     for e in row["errors"])
+
+
+@pytest.mark.parametrize("body, field", [
+    ({"columns": {"pellet.shape": ["sphere"], "pellet.radius": [1, 2]}}, "columns"),
+    ({"columns": {"pellet.colour": ["red"]}}, "columns.pellet.colour"),
+    ({"columns": {"pellet.radius [kg]": [1]}}, "columns.pellet.radius"),
+    ({"columns": []}, "columns"),
+    ({"columns": {"pellet.shape": "sphere"}}, "columns"),
+])
+def test_bad_column_bodies(client, body, field):
+    response = client.post("/v1/effectiveness/batch", json=body)
+    assert response.status_code == 422
+    assert field in [e["field"] for e in response.get_json()["errors"]]
+
+
+def test_unknown_layout_is_422(client):
+    response = client.post("/v1/effectiveness/batch?layout=wide", json={"cases": []})
+    assert response.status_code == 422

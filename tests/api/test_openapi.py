@@ -498,7 +498,11 @@ def test_every_request_field_of_the_spec_is_in_the_field_table():
     for body in request_body_schemas():
         # The batch and the sweep repeat the case (checked through it); the sweep's own fields
         # are checked against their table below.
-        if not {"cases", "case"} & set(resolve(body).get("properties", {})):
+        resolved = resolve(body)
+        properties = set(resolved.get("properties", {}))
+        for member in resolved.get("oneOf", []):  # the batch: {"cases"} or {"columns"}
+            properties |= set(resolve(member).get("properties", {}))
+        if not {"cases", "case", "columns"} & properties:
             names |= leaf_names(body, BODY_PREFIXES.get(body.get("$ref"), ""))
     for first, root in ROOTS.items():
         names |= leaf_names(schemas[root], first + ".") - {f"{first}.name"}

@@ -285,6 +285,38 @@ class CaseSchema(StrictSchema):
 CASE_SCHEMA = CaseSchema()
 
 
+def load_case_and_extras(case_body: dict, extras_schema: Schema, extras: dict,
+                         errors: dict | None = None):
+    """(extras, case): an operation's own fields and the case beside them, validated
+    together so that one ValidationError lists every bad field (``errors``: problems
+    the caller found already)."""
+    errors = dict(errors or {})
+    loaded = case = None
+    try:
+        loaded = extras_schema.load(extras)
+    except ValidationError as exc:
+        merge_messages(errors, exc.messages)
+    try:
+        case = CASE_SCHEMA.load(case_body)
+    except ValidationError as exc:
+        merge_messages(errors, exc.messages)
+    if errors:
+        raise ValidationError(errors)
+    return loaded, case
+
+
+def merge_messages(into: dict, messages) -> None:
+    """Merge marshmallow messages into ``into``, nested keys too, first message kept."""
+    if not isinstance(messages, dict):
+        into.setdefault("_schema", []).extend(messages)
+        return
+    for key, value in messages.items():
+        if isinstance(value, dict) and isinstance(into.get(key), dict):
+            merge_messages(into[key], value)
+        elif key not in into:
+            into[key] = value
+
+
 def flatten_errors(messages, prefix: str = "") -> list[dict]:
     """marshmallow's nested messages -> [{"field": "pellet.radius", "message": ...}]."""
     out: list[dict] = []

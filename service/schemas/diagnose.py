@@ -18,7 +18,7 @@ from .. import units
 from ..physics.case import Case
 from ..physics.inversion import ExternalConditions, HeatData, LabDataCheck
 from ..physics.kinetics import RATE_LAWS
-from .case import CASE_SCHEMA, StrictSchema
+from .case import StrictSchema, load_case_and_extras
 from .fields import Choice, Quantity, RawQuantity
 from .responses import diffusivity_fields, echo_inputs, quantity, warning_dicts
 from .rules import FIELD_RULES
@@ -94,17 +94,7 @@ def load_diagnose(body: dict) -> DiagnoseRequest:
         if refused:
             errors["kinetics"] = refused
         case_body["kinetics"] = {**kinetics, "rate_constant": PLACEHOLDER_RATE_CONSTANT}
-    observed = case = None
-    try:
-        observed = OBSERVED_RATE_SCHEMA.load(extras)
-    except ValidationError as exc:
-        errors.update(exc.messages)
-    try:
-        case = CASE_SCHEMA.load(case_body)
-    except ValidationError as exc:
-        _merge(errors, exc.messages)
-    if errors:
-        raise ValidationError(errors)
+    observed, case = load_case_and_extras(case_body, OBSERVED_RATE_SCHEMA, extras, errors)
     return DiagnoseRequest(
         case=case,
         observed_rate=observed["observed_rate"],
@@ -128,17 +118,6 @@ def load_diagnose(body: dict) -> DiagnoseRequest:
         ),
         heat_effects="thermal" in body,
     )
-
-
-def _merge(into: dict, messages) -> None:
-    if not isinstance(messages, dict):
-        into.setdefault("_schema", []).extend(messages)
-        return
-    for key, value in messages.items():
-        if isinstance(value, dict) and isinstance(into.get(key), dict):
-            _merge(into[key], value)
-        elif key not in into:
-            into[key] = value
 
 
 def optional_si(body: dict, dotted: str) -> float | None:

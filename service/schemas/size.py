@@ -15,7 +15,7 @@ from marshmallow import ValidationError, fields, validates_schema
 from ..physics.case import Case
 from ..physics.geometry import SHAPES
 from ..physics.inversion import DIMENSION_POWERS, Bed, SizeRow, SizingAnswer
-from .case import CASE_SCHEMA, StrictSchema
+from .case import StrictSchema, load_case_and_extras
 from .fields import field_for
 from .responses import echo_inputs, quantity, warning_dicts
 from .rules import FIELD_RULES
@@ -74,18 +74,7 @@ def load_size(body: dict) -> SizeRequest:
     """Validate a /v1/size body (one ValidationError listing every bad field)."""
     extras = {n: body[n] for n in SIZE_EXTRAS_SCHEMA.fields if n in body}
     case_body = {n: v for n, v in body.items() if n not in extras}
-    errors: dict = {}
-    loaded = case = None
-    try:
-        loaded = SIZE_EXTRAS_SCHEMA.load(extras)
-    except ValidationError as exc:
-        errors.update(exc.messages)
-    try:
-        case = CASE_SCHEMA.load(case_body)
-    except ValidationError as exc:
-        errors.update({k: v for k, v in exc.messages.items() if k not in errors})
-    if errors:
-        raise ValidationError(errors)
+    loaded, case = load_case_and_extras(case_body, SIZE_EXTRAS_SCHEMA, extras)
     table = {**TABLE_DEFAULTS, **loaded["table"]}
     bed = Bed(**loaded["bed"]) if "bed" in loaded else None
     return SizeRequest(case, loaded["target_effectiveness"], bed, table)

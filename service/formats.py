@@ -26,6 +26,11 @@ def _is_json_media_type(mimetype: str) -> bool:
     )
 
 
+def is_json_request() -> bool:
+    """True when the request says its body is JSON."""
+    return _is_json_media_type(request.mimetype)
+
+
 def read_json_body():
     """The request body as JSON (400 if malformed, 415 if not JSON).
 

@@ -15,6 +15,7 @@ from __future__ import annotations
 import math
 import re
 from functools import lru_cache
+from itertools import repeat
 
 import numpy as np
 import pint
@@ -174,28 +175,54 @@ def parse_quantities(values: list, si_unit: str,
         out[bad] = np.nan
         return out, bad
     if kinds == {str} and max(map(len, values)) <= MAX_UNIT_LENGTH + 40:
-        plain = _plain_numbers(values)
-        if plain is not None:  # "1.5" cells of a CSV column: numbers in the default unit
-            return parse_quantities(plain, si_unit, default_unit)
+        first = _NUMBER.match(values[0])
+        if first is not None and not first.group(2):
+            plain = _plain_numbers(values)
+            if plain is not None:  # "1.5" cells of a CSV column: numbers in the default unit
+                return parse_quantities(plain, si_unit, default_unit)
+        elif first is not None:
+            shared = _shared_unit_numbers(values, first)
+            if shared is not None:  # "1.5 mm", "2 mm", ...: one unit written the same way
+                return parse_quantities(shared, si_unit, first.group(2))
         matches = list(map(_NUMBER.match, values))
         if None not in matches:
             return _convert_matches(matches, si_unit, default_unit)
     return _parse_one_by_one(values, si_unit, default_unit)
 
 
-def _plain_numbers(values: list[str]) -> list[float] | None:
-    """The floats of strings that are bare numbers, or None if any is not.
+# Characters of a plain decimal number with its surrounding blanks. Within them,
+# ``float`` reads exactly what the number pattern accepts (sign, digits, one point,
+# exponent), to the same value; what it reads beyond the pattern (underscores,
+# nan/inf, non-ASCII digits and blanks) contains other characters.
+_PLAIN_CHARACTERS = re.compile(r"[0-9.eE+\- \t]*")
 
-    ``float`` reads every string the number pattern accepts as a whole, to the same
-    value; of what it reads beyond the pattern, underscores are excluded here and
-    nan/inf end up non-finite (rejected later either way).
-    """
-    if any("_" in v for v in values):
+
+def _plain_numbers(values: list[str]) -> list[float] | None:
+    """The floats of strings that are bare numbers, or None if any is not."""
+    if _PLAIN_CHARACTERS.fullmatch("".join(values)) is None:
         return None
     try:
         return list(map(float, values))
     except ValueError:
         return None
+
+
+def _shared_unit_numbers(values: list[str], first: re.Match) -> list[float] | None:
+    """The numbers when every string is a plain number followed by the same unit text
+    as the first one (``"1.5 mm"``, ``"0.2 mm"``; ``first`` is its pattern match),
+    else None.
+
+    The unit text is cut where the number pattern ends the first value's number; it
+    must not begin with a character that could continue a number, so the number
+    pattern splits every other value at the same place.
+    """
+    suffix = values[0][first.end(1):]
+    if suffix[0] in "0123456789.+-eE":
+        return None
+    if not all(map(str.endswith, values, repeat(suffix))):
+        return None
+    cut = -len(suffix)
+    return _plain_numbers([v[:cut] for v in values])
 
 
 def _convert_matches(matches: list, si_unit: str,

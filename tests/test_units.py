@@ -60,3 +60,30 @@ def test_column_parser_agrees_with_single_parser(raw):
         assert bad[0]
     else:
         assert not bad[0] and values[0] == expected
+
+
+@pytest.mark.parametrize("column", [
+    ["1.5 mm", "2 mm", "1e-3 mm", "-.5 mm", "+3. mm", " 4 mm", "5  mm"],
+    ["1.5 mm", "2mm", "3 mm"],  # a value written differently: the per-value path
+    ["1.5mm", "2 mm", "2.5mm"],
+    ["1.5 mm", "1_0 mm", "nan mm", "inf mm"],
+    ["1.5 mm", "\u0661 mm"],  # a non-ASCII digit: read by both paths alike
+    ["1.5.5mm", "2.5mm"],  # the first unit text is no unit
+    ["12 1/s", "3 1/s", "21/s"],
+    ["21/s", "2 1/s", "4/s"],
+    ["350 degC", "20 degC"],
+    ["1.5 eV", "2 eV"],
+    ["1.5 m", "2 cm", "3 mm"],
+])
+def test_column_of_one_written_unit_agrees_with_single_parser(column):
+    """The shortcut for a column whose strings all end in the same unit text gives,
+    value by value, what the one-value parser gives (or fails where it fails)."""
+    si_unit = "K" if "degC" in column[0] else "1/s" if "/s" in column[0] else "m"
+    values, bad = units.parse_quantities(column, si_unit)
+    for raw, value, failed in zip(column, values.tolist(), bad.tolist()):
+        try:
+            expected = units.parse_quantity(raw, si_unit)
+        except units.QuantityError:
+            assert failed, raw
+        else:
+            assert not failed and value == expected, raw

@@ -8,19 +8,20 @@ from contextlib import contextmanager
 
 import numpy as np
 import orjson
-from flask import Blueprint, current_app, request
+from flask import Blueprint, Response, current_app, request
 from marshmallow import ValidationError
 
 from ..errors import ApiProblem, validation_problem
-from ..formats import csv_response, json_response, read_json_body
+from ..formats import JSON_OPTIONS, csv_response, is_json_request, json_response, read_json_body
 from ..metrics import observe_batch
 from ..physics.effectiveness import evaluate_first_order_columns
 from ..physics.errors import PhysicsInputError, SolverBudgetExceeded
+from ..schemas.batch_decode import decode_cases
 from ..schemas.case import CASE_SCHEMA, flatten_errors
 from ..schemas.columnar import MISSING, fast_path_columns, flatten_cases, row_case
 from ..schemas.csv_rows import CsvProblem, read_csv_columns, read_header
 from .effectiveness import compute
-from ..schemas.responses import OUTPUT_UNITS, column_rows, request_field, result_fields
+from ..schemas.responses import OUTPUT_UNITS, column_rows_json, request_field, result_fields
 
 bp = Blueprint("batch", __name__, url_prefix="/v1")
 
@@ -34,16 +35,20 @@ class Batch:
     """The rows of one batch as dotted columns, and how to rebuild one row as a case."""
 
     def __init__(self, columns: dict, count: int, odd=None, cases: list | None = None,
-                 problems: dict | None = None, column_units: dict | None = None):
+                 problems: dict | None = None, column_units: dict | None = None,
+                 row_reader=None):
         self.columns, self.count, self.odd = columns, count, odd
         self.cases, self.problems = cases, problems or {}
         self.column_units = column_units or {}
+        self.row_reader = row_reader  # index -> the row as sent, when there is no case list
 
     def case(self, index: int):
         if index in self.problems:
             return self.problems[index]  # a string: the row's problem
         if self.cases is not None:
             return self.cases[index]
+        if self.row_reader is not None:
+            return self.row_reader(index)
         return row_case(self.columns, index, self.column_units)
 
 
@@ -61,24 +66,32 @@ def _read_batch() -> Batch:
         odd[list(ragged)] = True
         batch = Batch(columns, count, odd, problems=ragged, column_units=column_units)
     else:
-        body = read_json_body()
-        if isinstance(body, dict) and set(body) == {"columns"}:
-            batch = _column_body(body["columns"], limit)
-            count = batch.count
-        elif isinstance(body, dict) and set(body) == {"cases"} and isinstance(body["cases"], list):
-            cases = body["cases"]
-            count = len(cases)
-            if count <= limit:
-                columns, odd = flatten_cases(cases)
-                batch = Batch(columns, count, odd, cases=cases)
-        else:
-            raise validation_problem([{
-                "field": "cases",
-                "message": 'the body must be {"cases": [<case>, ...]} or '
-                           '{"columns": {"<field> [unit]": [...], ...}}'}])
+        batch = _json_batch(limit)
+        count = batch.count
     if count > limit:
         raise ApiProblem("too-large", f"The batch has {count} rows; the limit is {limit}.")
     return batch
+
+
+def _json_batch(limit: int) -> Batch:
+    """A JSON batch: {"cases": [...]} or {"columns": {...}} (422 for any other body)."""
+    decoded = decode_cases(request.get_data(cache=True)) if is_json_request() else None
+    if decoded is not None:  # rows of the fast-path form, decoded straight to columns
+        return Batch(decoded.columns, decoded.count, np.zeros(decoded.count, dtype=bool),
+                     row_reader=decoded.case)
+    body = read_json_body()
+    if isinstance(body, dict) and set(body) == {"columns"}:
+        return _column_body(body["columns"], limit)
+    if isinstance(body, dict) and set(body) == {"cases"} and isinstance(body["cases"], list):
+        cases = body["cases"]
+        if len(cases) > limit:  # answered 413 by the caller, before any row is read
+            return Batch({}, len(cases))
+        columns, odd = flatten_cases(cases)
+        return Batch(columns, len(cases), odd, cases=cases)
+    raise validation_problem([{
+        "field": "cases",
+        "message": 'the body must be {"cases": [<case>, ...]} or '
+                   '{"columns": {"<field> [unit]": [...], ...}}'}])
 
 
 def _column_body(raw_columns, limit: int) -> Batch:
@@ -146,14 +159,14 @@ def _as_batch(cases: list | Batch) -> Batch:
     return Batch(columns, len(cases), odd, cases=cases)
 
 
-def _fast_groups(batch: Batch, messages: bool):
+def _fast_groups(batch: Batch):
     """(group, column results) for the fast path, and the rows left for one-by-one."""
     groups, rest = fast_path_columns(batch.columns, batch.count, batch.odd, batch.column_units)
     done = []
     for group in groups:
         columns = evaluate_first_order_columns(
             group.shape, group.dimensions, group.rate_constant,
-            group.effective_diffusivity, group.surface_concentration, messages=messages,
+            group.effective_diffusivity, group.surface_concentration,
         )
         if not columns.finite.all():  # overflowing rows: the one-by-one path reports them
             rest.extend(group.rows[~columns.finite].tolist())
@@ -179,17 +192,21 @@ def _slow_rows(batch: Batch, rest: list[int]):
         yield index, _slow_row(batch.case(index), min(solver_budget, remaining))
 
 
-def run_batch(cases: list | Batch) -> list[dict]:
-    """Answer every row: fast-path groups column-wise, every other row one by one."""
+def run_batch(cases: list | Batch) -> tuple[list[str], int]:
+    """(JSON text of every row's answer in row order, number of failed rows): fast-path
+    groups column-wise, every other row one by one."""
     batch = _as_batch(cases)
     results: list = [None] * batch.count
-    done, rest = _fast_groups(batch, messages=True)
+    done, rest = _fast_groups(batch)
     for group, columns in done:
-        for index, fields in column_rows(group, columns):
-            results[index] = {"index": index, "status": 200, **fields}
+        rows, texts = column_rows_json(group, columns)
+        for index, text in zip(rows, texts):
+            results[index] = text
+    failed = 0
     for index, result in _slow_rows(batch, rest):
-        results[index] = {"index": index, **result}
-    return results
+        failed += result["status"] != 200
+        results[index] = orjson.dumps({"index": index, **result}, option=JSON_OPTIONS).decode()
+    return results, failed
 
 
 COLUMN_LAYOUT_FIELDS = ("effectiveness_factor", "thiele_modulus", "thiele_length",
@@ -205,7 +222,7 @@ def run_batch_columns(cases: list | Batch) -> dict:
     numbers = {name: np.full(n, np.nan) for name in COLUMN_LAYOUT_FIELDS}
     status = np.zeros(n, dtype=int)
     texts = {name: np.full(n, None, dtype=object) for name in ("regime", "method", "warnings", "errors")}
-    done, rest = _fast_groups(batch, messages=False)
+    done, rest = _fast_groups(batch)
     for group, columns in done:
         rows = group.rows
         for name in COLUMN_LAYOUT_FIELDS:
@@ -253,12 +270,12 @@ def effectiveness_batch():
             return csv_response(_csv_text(run_batch_columns(batch)))
         if layout == "columns":
             return json_response(run_batch_columns(batch))
-        results = run_batch(batch)
-        failed = sum(1 for r in results if r["status"] != 200)
-        return json_response(
-            {"rows": len(results), "succeeded": len(results) - failed, "failed": failed,
-             "results": results}
-        )
+        results, failed = run_batch(batch)
+        n = len(results)
+        head = '{"rows":%d,"succeeded":%d,"failed":%d,"results":[' % (n, n - failed, failed)
+        # three pieces, not one: the rows (tens of MB) are joined and encoded once
+        return Response([head.encode(), ",".join(results).encode(), b"]}"],
+                        mimetype="application/json")
 
 
 def _csv_text(payload: dict) -> str:

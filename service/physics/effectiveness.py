@@ -378,27 +378,49 @@ def regime_diagnostics(generalized: float, eta: float, order: float,
             )
         ]
     regime = regime_of(generalized)
+    if regime == "kinetic":
+        return []
+    return [diagnostic(REGIME_WARNINGS[regime],
+                       _regime_message(regime, f"{generalized:.4g}", f"{eta:.4g}", order))]
+
+
+def _regime_message(regime: str, generalized: str, eta: str, order: float) -> str:
+    """The message of a regime's diagnostic, the generalized modulus and eta given as text."""
     if regime == "diffusion":
         apparent_order = (order + 1.0) / 2.0
-        return [
-            diagnostic(
-                "STRONG_PORE_DIFFUSION",
-                f"Generalized modulus {generalized:.4g} > {DIFFUSION_LIMIT:g}: strong pore "
-                f"diffusion (eta = {eta:.4g}). Rates measured in this regime show about half the "
-                f"true activation energy and an apparent order of {apparent_order:g} instead of "
-                f"{order:g} (Weisz & Prater, Adv. Catal. 6, 1954).",
-            )
-        ]
-    if regime == "transition":
-        return [
-            diagnostic(
-                "TRANSITION_REGIME",
-                f"Generalized modulus {generalized:.4g} lies between {KINETIC_LIMIT:g} and "
-                f"{DIFFUSION_LIMIT:g}: transition between kinetic and diffusion control "
-                f"(eta = {eta:.4g}).",
-            )
-        ]
-    return []
+        return (
+            f"Generalized modulus {generalized} > {DIFFUSION_LIMIT:g}: strong pore "
+            f"diffusion (eta = {eta}). Rates measured in this regime show about half the "
+            f"true activation energy and an apparent order of {apparent_order:g} instead of "
+            f"{order:g} (Weisz & Prater, Adv. Catal. 6, 1954)."
+        )
+    return (
+        f"Generalized modulus {generalized} lies between {KINETIC_LIMIT:g} and "
+        f"{DIFFUSION_LIMIT:g}: transition between kinetic and diffusion control "
+        f"(eta = {eta})."
+    )
+
+
+def regime_message_template(regime: str, order: float) -> str:
+    """The message of ``regime_diagnostics`` for a regime as a %-template taking the
+    generalized modulus and eta (in that order) as floats: ``template % (phi, eta)``
+    gives the very text of ``regime_diagnostics(phi, eta, order)`` (a test checks),
+    for writers that format it for many rows."""
+    text = _regime_message(regime, "\x00", "\x01", order)
+    assert text.index("\x00") < text.index("\x01")
+    return text.replace("%", "%%").replace("\x00", "%.4g").replace("\x01", "%.4g")
+
+
+def first_order_row_diagnostics(generalized: float, eta: float, diffusion_length: float,
+                                effective_diffusivity: float,
+                                surface_concentration: float) -> list[Diagnostic]:
+    """The diagnostics of one row of ``evaluate_first_order_columns`` (what ``evaluate``
+    gives an isothermal first-order case of an ideal shape)."""
+    return regime_diagnostics(generalized, eta, 1.0) + range_diagnostics(
+        diffusion_length=diffusion_length,
+        effective_diffusivity=effective_diffusivity,
+        surface_concentration=surface_concentration,
+    )
 
 
 def range_diagnostics(**values: float) -> list[Diagnostic]:
@@ -432,9 +454,10 @@ class ColumnResult:
     regime: list[str]
     volume: np.ndarray | None
     external_area: np.ndarray | None
-    diagnostics: list[list[Diagnostic]] | None  # None when only codes were asked for
     finite: np.ndarray  # rows whose results are all finite (the others are re-run one by one)
-    codes: list[str] | None = None  # per row, the warning codes joined by ";" (no messages)
+    codes: list[str]  # per row, the warning codes joined by ";" (messages: see
+    # ``first_order_row_diagnostics``)
+    out_of_range: np.ndarray  # rows with an INPUT_OUTSIDE_COMMON_RANGE warning
 
     def subset(self, mask: np.ndarray) -> "ColumnResult":
         """The rows where ``mask`` is true."""
@@ -458,24 +481,20 @@ def evaluate_first_order_columns(
     rate_constant: np.ndarray,
     effective_diffusivity: np.ndarray,
     surface_concentration: np.ndarray,
-    messages: bool = True,
 ) -> ColumnResult:
     """Vectorized ``evaluate`` for isothermal first-order cases of one shape.
 
     Same formulas as ``evaluate`` (one source of truth: the closed forms and the
-    regime table), applied to whole columns; diagnostics built only for the rows
-    that carry one. ``messages=False`` gives only the warning codes per row (the
-    column layout of a batch), skipping the formatting of the messages.
+    regime table), applied to whole columns. The warnings come as codes per row;
+    ``first_order_row_diagnostics`` gives a row's diagnostics with their messages.
     """
     geometry = build_geometry(shape, **dimensions)
     n = len(rate_constant)
     with np.errstate(all="ignore"):
-        return _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration,
-                        messages)
+        return _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration)
 
 
-def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration,
-             messages=True):
+def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentration):
     length = np.broadcast_to(np.asarray(geometry.diffusion_length, dtype=float), (n,))
     char_length = np.broadcast_to(np.asarray(geometry.characteristic_length, dtype=float), (n,))
     phi = closed_form.thiele_modulus(length, rate_constant, effective_diffusivity)
@@ -484,31 +503,15 @@ def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentr
     eta = closed_form.effectiveness_first_order(np.where(finite, phi, 0.0), geometry.shape_exponent)
     rate = eta * rate_constant * surface_concentration
     finite &= np.isfinite(rate)
-    regime = np.where(
-        generalized < KINETIC_LIMIT,
-        "kinetic",
-        np.where(generalized > DIFFUSION_LIMIT, "diffusion", "transition"),
-    ).tolist()
+    kinetic, diffusion = generalized < KINETIC_LIMIT, generalized > DIFFUSION_LIMIT
+    regime = np.where(kinetic, "kinetic", np.where(diffusion, "diffusion", "transition")).tolist()
+    codes = np.where(kinetic, "", np.where(diffusion, REGIME_WARNINGS["diffusion"],
+                                           REGIME_WARNINGS["transition"])).tolist()
     out_of_range = _out_of_range_mask(length, effective_diffusivity, surface_concentration)
-    codes = None
-    if not messages:
-        codes = [REGIME_WARNINGS.get(r, "") for r in regime]
-        for i in np.flatnonzero(out_of_range).tolist():
-            extra = ["INPUT_OUTSIDE_COMMON_RANGE"] * _out_of_range_count(
-                float(length[i]), float(effective_diffusivity[i]), float(surface_concentration[i]))
-            codes[i] = ";".join(([codes[i]] if codes[i] else []) + extra)
-    diagnostics: list[list[Diagnostic]] | None = [[] for _ in range(n)] if messages else None
-    flagged = [] if not messages else np.flatnonzero(
-        finite & ((generalized >= KINETIC_LIMIT) | out_of_range)).tolist()
-    generalized_values, eta_values = generalized[flagged].tolist(), eta[flagged].tolist()
-    for i, gen_i, eta_i in zip(flagged, generalized_values, eta_values):
-        diagnostics[i] = regime_diagnostics(gen_i, eta_i, 1.0)
-        if out_of_range[i]:
-            diagnostics[i] += range_diagnostics(
-                diffusion_length=float(length[i]),
-                effective_diffusivity=float(effective_diffusivity[i]),
-                surface_concentration=float(surface_concentration[i]),
-            )
+    for i in np.flatnonzero(out_of_range).tolist():
+        extra = ["INPUT_OUTSIDE_COMMON_RANGE"] * _out_of_range_count(
+            float(length[i]), float(effective_diffusivity[i]), float(surface_concentration[i]))
+        codes[i] = ";".join(([codes[i]] if codes[i] else []) + extra)
     return ColumnResult(
         effectiveness_factor=eta,
         thiele_modulus=phi,
@@ -521,9 +524,9 @@ def _columns(geometry, n, rate_constant, effective_diffusivity, surface_concentr
         external_area=(
             None if geometry.external_area is None else np.broadcast_to(geometry.external_area, (n,))
         ),
-        diagnostics=diagnostics,
         finite=finite,
         codes=codes,
+        out_of_range=out_of_range,
     )
 
 

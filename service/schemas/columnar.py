@@ -18,7 +18,9 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from operator import itemgetter
 
+import msgspec
 import numpy as np
 
 from .. import units
@@ -26,17 +28,14 @@ from ..physics.geometry import SHAPES
 from .rules import FIELD_RULES
 
 
-class _Missing:
-    """A field the row does not give (JSON: absent; CSV: an empty cell)."""
-
-    def __repr__(self):
-        return "MISSING"
-
-
-MISSING = _Missing()
+# A field the row does not give (JSON: absent; CSV: an empty cell). It is msgspec's
+# marker of an absent field, so that typed decoding (``batch_decode``) yields
+# columns without a pass to translate markers.
+MISSING = msgspec.UNSET
+_Missing = type(MISSING)
 
 # The fields a fast-path row may give; anything else sends the row to the schema.
-_FAST_FIELDS = {
+FAST_FIELDS = {
     "pellet.shape", "pellet.exposed_faces", "kinetics.model", "kinetics.order",
     "kinetics.rate_constant", "kinetics.rate_basis", "transport.effective_diffusivity",
     "surface.concentration", "options.profile_points",
@@ -118,12 +117,26 @@ def row_case(columns: dict[str, list], index: int, column_units: dict | None = N
 def _present(column: list | None, n: int) -> np.ndarray:
     if column is None:
         return np.zeros(n, dtype=bool)
+    if MISSING not in column:  # the common case, one C-level scan
+        return np.ones(n, dtype=bool)
     return np.array([v is not MISSING for v in column], dtype=bool)
+
+
+def _all_among(column: list, types: set, allowed: set) -> bool:
+    """True when every value is MISSING or one of ``allowed``, of one of ``types``
+    (whole-column set operations; the per-row checks below give the same answer)."""
+    kinds = set(map(type, column))
+    kinds.discard(_Missing)
+    if not kinds <= types:
+        return False
+    values = set(column)  # hashable: every type in ``types`` is a scalar
+    values.discard(MISSING)
+    return values <= allowed
 
 
 def _equals(column: list | None, n: int, allowed: tuple) -> np.ndarray:
     """Rows whose value is MISSING or equal (same JSON type) to one of ``allowed``."""
-    if column is None:
+    if column is None or _all_among(column, {type(a) for a in allowed}, set(allowed)):
         return np.ones(n, dtype=bool)
     pairs = {(type(a), a) for a in allowed}
     return np.array([(v is MISSING) or (type(v) in _SCALARS and (type(v), v) in pairs)
@@ -131,7 +144,7 @@ def _equals(column: list | None, n: int, allowed: tuple) -> np.ndarray:
 
 
 def _first_order(column: list | None, n: int) -> np.ndarray:
-    if column is None:
+    if column is None or _all_among(column, {int, float}, {1}):
         return np.ones(n, dtype=bool)
     return np.array([(v is MISSING) or (type(v) in (int, float) and v == 1) for v in column],
                     dtype=bool)
@@ -163,7 +176,7 @@ def fast_path_columns(columns: dict[str, list], n: int, odd: np.ndarray | None =
         return present.get(key, absent)
 
     for key in columns:
-        if key not in _FAST_FIELDS:
+        if key not in FAST_FIELDS:
             eligible &= ~given(key)
     shape_column = columns.get("pellet.shape")
     if shape_column is None:
@@ -176,38 +189,72 @@ def fast_path_columns(columns: dict[str, list], n: int, odd: np.ndarray | None =
         eligible &= given(key)
     shapes = np.array([v if type(v) is str else "" for v in shape_column], dtype=object)
     eligible &= np.isin(shapes, _FAST_SHAPES)
-    groups: list[FastGroup] = []
+    masks = {}
     for shape in _FAST_SHAPES:
         spec = SHAPES[shape]
         mask = eligible & (shapes == shape)
-        for other in _FAST_FIELDS:
+        for other in FAST_FIELDS:
             if other.startswith("pellet.") and other not in ("pellet.shape",):
                 name = other.split(".", 1)[1]
                 if name in spec.dimensions:
                     mask &= given(other)
                 elif name not in spec.optional or spec.optional[name] is None:
                     mask &= ~given(other)
-        rows = np.flatnonzero(mask)
-        if len(rows):
-            group = _convert_group(shape, rows, columns, column_units)
-            if group is not None:
-                groups.append(group)
+        if mask.any():
+            masks[shape] = mask
+    if not masks:
+        return [], list(range(n))
+    # each quantity column is read once, at the rows of every shape that uses it
+    candidates = np.logical_or.reduce(list(masks.values()))
+    si: dict[str, np.ndarray] = {}
+    bad = np.zeros(n, dtype=bool)
+    needed = {key: candidates for key in _KINETIC_QUANTITIES}
+    for shape, mask in masks.items():
+        for name in SHAPES[shape].dimensions:
+            key = f"pellet.{name}"
+            needed[key] = needed[key] | mask if key in needed else mask
+    for key, rows in needed.items():
+        si[key], failed = _quantity(columns, key, rows, column_units, _KINETIC_QUANTITIES.get(key))
+        bad |= failed
+    groups: list[FastGroup] = []
+    for shape, mask in masks.items():
+        group = _group(shape, mask & ~bad, columns, si)
+        if group is not None:
+            groups.append(group)
     accepted = np.zeros(n, dtype=bool)
     for group in groups:
         accepted[group.rows] = True
     return groups, np.flatnonzero(~accepted).tolist()
 
 
-def _take(columns: dict[str, list], key: str, rows: list[int]) -> list:
-    column = columns[key]
-    return [column[i] for i in rows]
+# the quantities every fast row gives, and the SI unit they are read in when the
+# field table's unit depends on other fields (a first-order rate constant: 1/s)
+_KINETIC_QUANTITIES = {"kinetics.rate_constant": "1/s", "transport.effective_diffusivity": None,
+                       "surface.concentration": None}
 
 
-def _quantity(columns, key, rows, column_units, si_unit=None):
+def _take(column: list, rows: list[int]) -> list:
+    if len(rows) == len(column):  # rows are distinct indices: every row, in order
+        return column
+    if len(rows) == 1:
+        return [column[rows[0]]]
+    return list(itemgetter(*rows)(column))
+
+
+def _quantity(columns, key, mask, column_units, si_unit=None):
+    """(SI values, failed) over all rows for the rows of ``mask`` (NaN and False elsewhere)."""
     rule = FIELD_RULES[key]
-    values, bad = units.parse_quantities(_take(columns, key, rows), si_unit or rule.unit,
-                                         column_units.get(key))
-    return values, bad | _range_violation(values, rule)
+    rows = np.flatnonzero(mask)
+    parsed, failed = units.parse_quantities(_take(columns[key], rows.tolist()),
+                                            si_unit or rule.unit, column_units.get(key))
+    failed |= _range_violation(parsed, rule)
+    if len(rows) == len(mask):
+        return parsed, failed
+    values = np.full(len(mask), np.nan)
+    values[rows] = parsed
+    bad = np.zeros(len(mask), dtype=bool)
+    bad[rows] = failed
+    return values, bad
 
 
 def _range_violation(values: np.ndarray, rule) -> np.ndarray:
@@ -220,46 +267,38 @@ def _range_violation(values: np.ndarray, rule) -> np.ndarray:
     return bad | np.isnan(values)
 
 
-def _convert_group(shape: str, rows: np.ndarray, columns: dict[str, list],
-                   column_units: dict) -> FastGroup | None:
+def _group(shape: str, mask: np.ndarray, columns: dict[str, list],
+           si: dict[str, np.ndarray]) -> FastGroup | None:
+    """The fast group of one shape at the rows of ``mask`` (whose quantities are valid),
+    after the shape's optional choice fields (a slab's exposed faces)."""
     spec = SHAPES[shape]
-    index = rows.tolist()
-    bad = np.zeros(len(index), dtype=bool)
-    dimensions = {}
-    for name in spec.dimensions:
-        dimensions[name], failed = _quantity(columns, f"pellet.{name}", index, column_units)
-        bad |= failed
+    rows = np.flatnonzero(mask)
+    good = np.ones(len(rows), dtype=bool)
+    choices = {}
     for name, default in spec.optional.items():
         if default is None:
             continue
         key = f"pellet.{name}"
         if key in columns:
-            values = [default if v is MISSING else v for v in _take(columns, key, index)]
+            values = [default if v is MISSING else v for v in _take(columns[key], rows.tolist())]
             allowed = {(type(c), c) for c in FIELD_RULES[key].choices}
-            bad |= ~np.array([type(v) in _SCALARS and (type(v), v) in allowed for v in values],
+            good &= np.array([type(v) in _SCALARS and (type(v), v) in allowed for v in values],
                              dtype=bool)
-            dimensions[name] = np.array([v if type(v) is int else 0 for v in values])
+            choices[name] = np.array([v if type(v) is int else 0 for v in values])
         else:
-            dimensions[name] = np.full(len(index), default)
-    # first order on a pellet-volume basis: k in 1/s
-    rate_constant, failed = _quantity(columns, "kinetics.rate_constant", index, column_units,
-                                      "1/s")
-    bad |= failed
-    diffusivity, failed = _quantity(columns, "transport.effective_diffusivity", index,
-                                    column_units)
-    bad |= failed
-    concentration, failed = _quantity(columns, "surface.concentration", index, column_units)
-    bad |= failed
-    good = ~bad
+            choices[name] = np.full(len(rows), default)
     if not good.any():
         return None
+    picked = rows[good]
+    dimensions = {name: si[f"pellet.{name}"][picked] for name in spec.dimensions}
+    dimensions.update({name: values[good] for name, values in choices.items()})
     return FastGroup(
         shape=shape,
-        rows=rows[good],
-        dimensions={name: values[good] for name, values in dimensions.items()},
-        rate_constant=rate_constant[good],
-        effective_diffusivity=diffusivity[good],
-        surface_concentration=concentration[good],
+        rows=picked,
+        dimensions=dimensions,
+        rate_constant=si["kinetics.rate_constant"][picked],
+        effective_diffusivity=si["transport.effective_diffusivity"][picked],
+        surface_concentration=si["surface.concentration"][picked],
     )
 
 

@@ -77,7 +77,7 @@ def read_csv_columns(raw: bytes, max_rows: int):
         rows = list(csv.reader(io.StringIO(text, newline="")))
     except csv.Error as exc:
         raise CsvProblem(f"the CSV cannot be read: {exc}", malformed=True) from None
-    rows = [r for r in rows if any(cell.strip() for cell in r)]
+    rows = [r for r in rows if "".join(r).strip()]  # blank lines are not rows
     if not rows:
         raise CsvProblem("the CSV has no header row", malformed=True)
     header = read_header(rows[0])
@@ -94,9 +94,10 @@ def read_csv_columns(raw: bytes, max_rows: int):
     column_units: dict[str, str] = {}
     for (name, unit), cells in zip(header, zip(*data) if data else [()] * width):
         rule = FIELD_RULES[name]
-        stripped = [c.strip() for c in cells]
+        stripped = list(map(str.strip, cells))
         if rule.kind == "quantity" or (rule.kind == "choice" and not _numeric_choices(rule)):
-            columns[name] = [MISSING if c == "" else c for c in stripped]
+            columns[name] = [MISSING if c == "" else c for c in stripped] if "" in stripped \
+                else stripped
             if unit:
                 column_units[name] = unit
         else:

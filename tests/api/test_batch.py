@@ -5,9 +5,13 @@ import csv
 import io
 import random
 
+import orjson
 import pytest
 
 from service.api.batch import run_batch
+from service.schemas.batch_decode import decode_cases
+from service.physics.effectiveness import evaluate
+from service.schemas.responses import result_fields
 from service.schemas.case import CASE_SCHEMA
 from service.schemas.columnar import fast_path
 from tests.conftest import SPHERE_CASE
@@ -168,14 +172,19 @@ def test_columnar_and_schema_paths_agree(app, seed):
     assert len(accepted) > 20  # the generator does produce fast rows
     # and the answers of the batch equal the single-case answers row by row
     with app.app_context():
-        results = run_batch(rows)
-    for index in sorted(accepted)[:40]:
+        texts, failed = run_batch(rows)
+    results = [orjson.loads(text) for text in texts]
+    assert failed == sum(r["status"] != 200 for r in results)
+    regimes, codes = set(), set()
+    for index in sorted(accepted):
         case = CASE_SCHEMA.load(rows[index])
-        from service.physics.effectiveness import evaluate
-        from service.schemas.responses import result_fields
-
         expected = {"index": index, "status": 200, **result_fields(case, evaluate(case))}
         assert results[index] == expected
+        regimes.add(expected["regime"])
+        codes.update(w["code"] for w in expected["warnings"])
+    # every branch of the row writer was compared
+    assert regimes == {"kinetic", "transition", "diffusion"}
+    assert {"STRONG_PORE_DIFFUSION", "TRANSITION_REGIME", "INPUT_OUTSIDE_COMMON_RANGE"} <= codes
 
 
 COLUMNS = {
@@ -251,3 +260,38 @@ def test_bad_column_bodies(client, body, field):
 def test_unknown_layout_is_422(client):
     response = client.post("/v1/effectiveness/batch?layout=wide", json={"cases": []})
     assert response.status_code == 422
+
+
+def test_typed_decoding_declines_every_other_body():
+    """The typed decoder reads only batches whose rows use fast-path fields and value
+    types; any other body is left to the general reader (it never rejects one)."""
+    assert decode_cases(orjson.dumps({"cases": [SPHERE_CASE, {}]})) is not None
+    thermal = copy.deepcopy(SPHERE_CASE)
+    thermal["thermal"] = {"prater_number": 0.1, "arrhenius_number": 10}
+    null_radius = copy.deepcopy(SPHERE_CASE)
+    null_radius["pellet"]["radius"] = None
+    flag_order = copy.deepcopy(SPHERE_CASE)
+    flag_order["kinetics"]["order"] = True
+    for body in ({"cases": [SPHERE_CASE], "extra": 1}, {"cases": [thermal]},
+                 {"cases": [null_radius]}, {"cases": [flag_order]}, {"cases": [SPHERE_CASE, 7]},
+                 {"cases": [{"pellet": {"shape": "sphere", "colour": "red"}}]},
+                 {"columns": {"pellet.shape": ["sphere"]}}, [SPHERE_CASE], {"cases": {}}):
+        assert decode_cases(orjson.dumps(body)) is None, body
+    for raw in (b"", b"{", b'{"cases": [NaN]}', b'{"cases": [{"pellet": {"radius": 1e400}}]}'):
+        assert decode_cases(raw) is None
+
+
+@pytest.mark.parametrize("seed", [4, 5])
+def test_typed_and_general_reading_answer_alike(client, seed):
+    """A batch the typed decoder reads gets the very answer the general reader gives
+    the same rows (forced by one extra row the typed decoder declines)."""
+    rows = [row for row in _random_rows(3000, seed)
+            if decode_cases(orjson.dumps({"cases": [row]})) is not None]
+    assert len(rows) > 400
+    assert decode_cases(orjson.dumps({"cases": rows})) is not None
+    typed = client.post("/v1/effectiveness/batch", json={"cases": rows}).get_json()
+    general = client.post("/v1/effectiveness/batch", json={"cases": rows + [None]}).get_json()
+    assert decode_cases(orjson.dumps({"cases": rows + [None]})) is None
+    assert general["results"][:-1] == typed["results"]
+    assert typed["failed"] == general["failed"] - 1 and typed["succeeded"] == general["succeeded"]
+    assert 30 < typed["succeeded"] < len(rows)  # both kinds of row were compared

@@ -15,7 +15,6 @@ from __future__ import annotations
 import math
 import re
 from functools import lru_cache
-from itertools import repeat
 
 import numpy as np
 import pint
@@ -214,15 +213,27 @@ def _shared_unit_numbers(values: list[str], first: re.Match) -> list[float] | No
 
     The unit text is cut where the number pattern ends the first value's number; it
     must not begin with a character that could continue a number, so the number
-    pattern splits every other value at the same place.
+    pattern splits every other value at the same place. The column is handled as one
+    string (values joined by NUL, which no value may contain): the unit text must
+    end every value, and what is left of each must be a plain number.
     """
     suffix = values[0][first.end(1):]
     if suffix[0] in "0123456789.+-eE":
         return None
-    if not all(map(str.endswith, values, repeat(suffix))):
+    joined = "\x00".join(values) + "\x00"
+    ending = suffix + "\x00"
+    if joined.count("\x00") != len(values) or joined.count(ending) != len(values):
         return None
-    cut = -len(suffix)
-    return _plain_numbers([v[:cut] for v in values])
+    heads = joined.replace(ending, "\x00")[:-1]
+    if _PLAIN_OR_NUL.fullmatch(heads) is None:
+        return None
+    try:
+        return list(map(float, heads.split("\x00")))
+    except ValueError:
+        return None
+
+
+_PLAIN_OR_NUL = re.compile(r"[0-9.eE+\- \t\x00]*")
 
 
 def _convert_matches(matches: list, si_unit: str,

@@ -36,8 +36,9 @@ class Batch:
 
     def __init__(self, columns: dict, count: int, odd=None, cases: list | None = None,
                  problems: dict | None = None, column_units: dict | None = None,
-                 row_reader=None):
+                 row_reader=None, complete: set | frozenset = frozenset()):
         self.columns, self.count, self.odd = columns, count, odd
+        self.complete = complete  # columns with a value in every row
         self.cases, self.problems = cases, problems or {}
         self.column_units = column_units or {}
         self.row_reader = row_reader  # index -> the row as sent, when there is no case list
@@ -78,7 +79,7 @@ def _json_batch(limit: int) -> Batch:
     decoded = decode_cases(request.get_data(cache=True)) if is_json_request() else None
     if decoded is not None:  # rows of the fast-path form, decoded straight to columns
         return Batch(decoded.columns, decoded.count, np.zeros(decoded.count, dtype=bool),
-                     row_reader=decoded.case)
+                     row_reader=decoded.case, complete=decoded.complete)
     body = read_json_body()
     if isinstance(body, dict) and set(body) == {"columns"}:
         return _column_body(body["columns"], limit)
@@ -161,7 +162,8 @@ def _as_batch(cases: list | Batch) -> Batch:
 
 def _fast_groups(batch: Batch):
     """(group, column results) for the fast path, and the rows left for one-by-one."""
-    groups, rest = fast_path_columns(batch.columns, batch.count, batch.odd, batch.column_units)
+    groups, rest = fast_path_columns(batch.columns, batch.count, batch.odd, batch.column_units,
+                                     batch.complete)
     done = []
     for group in groups:
         columns = evaluate_first_order_columns(
@@ -280,24 +282,36 @@ def effectiveness_batch():
 
 def _csv_text(payload: dict) -> str:
     """The column-layout answer as CSV text (header with units; empty cells where a row
-    failed). Numbers are written column-wise by orjson (shortest round-trip form), text
-    cells quoted as RFC 4180 requires."""
+    failed). The numbers are written by orjson as one table (shortest round-trip form;
+    a failed row's null becomes an empty cell), text cells quoted as RFC 4180 requires."""
     header = ["index", "status"] + [
         f"{c} [{OUTPUT_UNITS[c]}]" if c in OUTPUT_UNITS else c for c in CSV_COLUMNS
     ] + ["warnings", "errors"]
     columns = payload["columns"]
-    cells = []
-    for name in ("index", "status") + CSV_COLUMNS + ("warnings", "errors"):
-        values = columns[name]
-        if isinstance(values, np.ndarray):
-            text = orjson.dumps(values, option=orjson.OPT_SERIALIZE_NUMPY)[1:-1].decode()
-            cells.append(["" if v == "null" else v for v in text.split(",")] if len(values) else [])
-        elif name == "errors":  # free text: quoted where needed
-            cells.append([_csv_cell(v) for v in values])
-        else:  # regime, method, warning codes: plain words
-            cells.append(["" if v is None else v for v in values])
-    lines = [",".join(header)] + [",".join(row) for row in zip(*cells)]
+    numeric = [name for name in CSV_COLUMNS if isinstance(columns[name], np.ndarray)]
+    words = [name for name in CSV_COLUMNS if name not in numeric]
+    if numeric != list(CSV_COLUMNS[:len(numeric)]):
+        raise ValueError("the CSV writer expects the numeric columns first")
+    n = len(columns["index"])
+    if n:
+        table = orjson.dumps(np.column_stack([columns[name] for name in numeric]),
+                             option=orjson.OPT_SERIALIZE_NUMPY).decode()
+        numbers = table[2:-2].replace("null", "").split("],[")
+    else:
+        numbers = []
+    texts = [_plain_cells(columns[name]) for name in words + ["warnings"]]
+    errors = columns["errors"]
+    texts.append([_csv_cell(v) for v in errors] if errors.count(None) != n else [""] * n)
+    lines = [",".join(header)]
+    lines += [",".join(cells) for cells in zip(
+        map(str, columns["index"].tolist()), map(str, columns["status"].tolist()), numbers,
+        *texts)]
     return "\r\n".join(lines) + "\r\n"
+
+
+def _plain_cells(values: list) -> list[str]:
+    """Cells of plain words (regime, method, warning codes): None becomes empty."""
+    return [("" if v is None else v) for v in values] if None in values else values
 
 
 def _csv_cell(value) -> str:

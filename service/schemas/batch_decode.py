@@ -47,38 +47,49 @@ def _build_types():
     for key in sorted(FAST_FIELDS):
         section, name = key.split(".")
         sections.setdefault(section, []).append(name)
-    section_types = {
-        section: msgspec.defstruct(
+    given, absent = {}, {}
+    for section, names in sections.items():
+        given[section] = msgspec.defstruct(
             f"Fast{section.title()}",
             [(name, _value_type(f"{section}.{name}"), MISSING) for name in names],
             forbid_unknown_fields=True, gc=False,
         )
-        for section, names in sections.items()
-    }
+        # a section the row leaves out: an empty block of a subclass, so that every
+        # row has every section (columns read by one dotted attribute look-up) and
+        # the row can still be rebuilt exactly as sent
+        absent[section] = msgspec.defstruct(f"Absent{section.title()}", [],
+                                            bases=(given[section],), gc=False)
     case_type = msgspec.defstruct(
         "FastCase",
-        [(section, Union[kind, _UNSET], MISSING) for section, kind in section_types.items()],
+        [(section, kind, msgspec.field(default_factory=absent[section]))
+         for section, kind in given.items()],
         forbid_unknown_fields=True, gc=False,
     )
     body_type = msgspec.defstruct("FastBatch", [("cases", list[case_type])],
                                   forbid_unknown_fields=True)
-    return sections, section_types, msgspec.json.Decoder(body_type)
+    return sections, absent, msgspec.json.Decoder(body_type)
 
 
-_SECTIONS, _SECTION_TYPES, _DECODER = _build_types()
+_SECTIONS, _ABSENT, _DECODER = _build_types()
 
 
 class DecodedCases:
-    """The rows of a typed-decoded batch: dotted columns, and each row as a plain case."""
+    """The rows of a typed-decoded batch: dotted columns (and which of them every row
+    gives), and each row as a plain case."""
 
     def __init__(self, cases: list):
         self._cases = cases
         self.count = len(cases)
-        self.columns = _columns(cases)
+        self.columns, self.complete = _columns(cases)
 
     def case(self, index: int) -> dict:
         """Row ``index`` as the JSON object it was sent as (absent fields left out)."""
-        return msgspec.to_builtins(self._cases[index])
+        row = self._cases[index]
+        case = msgspec.to_builtins(row)
+        for section, absent in _ABSENT.items():
+            if type(getattr(row, section)) is absent:
+                del case[section]
+        return case
 
 
 def decode_cases(raw: bytes) -> DecodedCases | None:
@@ -91,20 +102,20 @@ def decode_cases(raw: bytes) -> DecodedCases | None:
     return DecodedCases(body.cases)
 
 
-def _columns(cases: list) -> dict[str, list]:
-    """Dotted columns of the given fields (MISSING where a row leaves one out); a field
-    no row gives has no column, as in the general path."""
+def _columns(cases: list) -> tuple[dict[str, list], set[str]]:
+    """Dotted columns of the given fields (MISSING where a row leaves one out) and the
+    names of the columns no row leaves out; a field no row gives has no column, as in
+    the general path."""
     n = len(cases)
     columns: dict[str, list] = {}
+    complete = set()
     for section, names in _SECTIONS.items():
-        blocks = list(map(attrgetter(section), cases))
-        if blocks.count(MISSING) == n:
-            continue
-        if MISSING in blocks:
-            empty = _SECTION_TYPES[section]()
-            blocks = [empty if b is MISSING else b for b in blocks]
         for name in names:
-            column = list(map(attrgetter(name), blocks))
-            if column.count(MISSING) != n:
-                columns[f"{section}.{name}"] = column
-    return columns
+            key = f"{section}.{name}"
+            column = list(map(attrgetter(key), cases))
+            missing = column.count(MISSING)
+            if missing != n:
+                columns[key] = column
+            if missing == 0:
+                complete.add(key)
+    return columns, complete

@@ -161,15 +161,18 @@ def _profile_points_ok(column: list | None, n: int) -> np.ndarray:
 
 
 def fast_path_columns(columns: dict[str, list], n: int, odd: np.ndarray | None = None,
-                      column_units: dict | None = None) -> tuple[list[FastGroup], list[int]]:
+                      column_units: dict | None = None,
+                      complete: set[str] = frozenset()) -> tuple[list[FastGroup], list[int]]:
     """Split rows into fast-path groups (validated, SI) and the rest (row indices).
 
     ``column_units``: a header unit per column (CSV or column-layout JSON), applied to
-    plain numbers and to strings without a unit of their own.
+    plain numbers and to strings without a unit of their own. ``complete``: names of
+    columns known to have a value in every row (saves a scan).
     """
     column_units = column_units or {}
     eligible = np.ones(n, dtype=bool) if odd is None else ~odd
-    present = {key: _present(column, n) for key, column in columns.items()}
+    present = {key: np.ones(n, dtype=bool) if key in complete else _present(column, n)
+               for key, column in columns.items()}
     absent = np.zeros(n, dtype=bool)
 
     def given(key):
@@ -187,8 +190,10 @@ def fast_path_columns(columns: dict[str, list], n: int, odd: np.ndarray | None =
     eligible &= _profile_points_ok(columns.get("options.profile_points"), n)
     for key in ("kinetics.rate_constant", "transport.effective_diffusivity", "surface.concentration"):
         eligible &= given(key)
-    shapes = np.array([v if type(v) is str else "" for v in shape_column], dtype=object)
-    eligible &= np.isin(shapes, _FAST_SHAPES)
+    if set(map(type, shape_column)) == {str}:
+        shapes = np.array(shape_column, dtype=object)
+    else:
+        shapes = np.array([v if type(v) is str else "" for v in shape_column], dtype=object)
     masks = {}
     for shape in _FAST_SHAPES:
         spec = SHAPES[shape]

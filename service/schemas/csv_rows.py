@@ -60,6 +60,24 @@ def _numeric_choices(rule) -> bool:
     return bool(rule.choices) and isinstance(rule.choices[0], int)
 
 
+def _plain_rows(text: str) -> list[list[str]] | None:
+    """The rows of a CSV text without quotes, carriage returns other than in CRLF line
+    ends, NUL characters or over-long lines, split by plain string operations; None
+    for any other text (then the csv module reads it). For such text the csv module
+    (excel dialect) splits exactly at every comma and line end, only five times slower.
+    """
+    if '"' in text or "\x00" in text:
+        return None
+    if "\r" in text:
+        text = text.replace("\r\n", "\n")
+        if "\r" in text:
+            return None
+    lines = text.split("\n")
+    if max(map(len, lines)) > csv.field_size_limit():
+        return None  # the csv module's limit and its error apply
+    return [line.split(",") for line in lines]
+
+
 def read_csv_columns(raw: bytes, max_rows: int):
     """(dotted columns, row count, {row: problem}, {column: header unit}) from CSV bytes.
 
@@ -73,11 +91,14 @@ def read_csv_columns(raw: bytes, max_rows: int):
     except UnicodeDecodeError as exc:
         raise CsvProblem(f"the CSV is not UTF-8 text ({exc.reason} at byte {exc.start})",
                          malformed=True) from None
-    try:
-        rows = list(csv.reader(io.StringIO(text, newline="")))
-    except csv.Error as exc:
-        raise CsvProblem(f"the CSV cannot be read: {exc}", malformed=True) from None
-    rows = [r for r in rows if "".join(r).strip()]  # blank lines are not rows
+    rows = _plain_rows(text)
+    if rows is None:
+        try:
+            rows = list(csv.reader(io.StringIO(text, newline="")))
+        except csv.Error as exc:
+            raise CsvProblem(f"the CSV cannot be read: {exc}", malformed=True) from None
+    # blank lines are not rows (the first cell decides for almost every row)
+    rows = [r for r in rows if r and (r[0].strip() or "".join(r).strip())]
     if not rows:
         raise CsvProblem("the CSV has no header row", malformed=True)
     header = read_header(rows[0])
@@ -86,8 +107,9 @@ def read_csv_columns(raw: bytes, max_rows: int):
     if n > max_rows:
         return {}, n, {}, {}
     width = len(header)
-    ragged = {i: f"row has {len(row)} cells; the header has {width}"
-              for i, row in enumerate(data) if len(row) != width}
+    ragged = {} if set(map(len, data)) <= {width} else {
+        i: f"row has {len(row)} cells; the header has {width}"
+        for i, row in enumerate(data) if len(row) != width}
     if ragged:
         data = [row if i not in ragged else [""] * width for i, row in enumerate(data)]
     columns: dict[str, list] = {}

@@ -14,6 +14,7 @@ from service.physics.effectiveness import evaluate
 from service.schemas.responses import result_fields
 from service.schemas.case import CASE_SCHEMA
 from service.schemas.columnar import fast_path
+from service.schemas.csv_rows import _plain_rows
 from tests.conftest import SPHERE_CASE
 
 
@@ -295,3 +296,22 @@ def test_typed_and_general_reading_answer_alike(client, seed):
     assert general["results"][:-1] == typed["results"]
     assert typed["failed"] == general["failed"] - 1 and typed["succeeded"] == general["succeeded"]
     assert 30 < typed["succeeded"] < len(rows)  # both kinds of row were compared
+
+
+@pytest.mark.parametrize("seed", range(5))
+def test_plain_csv_splitting_agrees_with_the_csv_module(seed):
+    """Quote-free CSV text is split without the csv module; the rows (blank lines left
+    out) are exactly those the csv module (excel dialect) reads."""
+    rng = random.Random(seed)
+    alphabet = ["a", "1", ".", " ", ",", ",", "\n", "\n", "\r\n", "\t", "mm", "\u00b5", "\r"]
+    for _ in range(300):
+        text = "".join(rng.choice(alphabet) for _ in range(rng.randint(0, 60)))
+        split = _plain_rows(text)
+        if split is None:
+            assert "\r" in text.replace("\r\n", "")  # declined only for a lone CR here
+            continue
+
+        def kept(rows):
+            return [r for r in rows if r and (r[0].strip() or "".join(r).strip())]
+
+        assert kept(split) == kept(list(csv.reader(io.StringIO(text, newline="")))), repr(text)

@@ -14,6 +14,7 @@ from service.physics.effectiveness import evaluate
 from service.schemas.responses import result_fields
 from service.schemas.case import CASE_SCHEMA
 from service.schemas.columnar import fast_path
+from service.schemas import csv_rows
 from service.schemas.csv_rows import _plain_rows
 from tests.conftest import SPHERE_CASE
 
@@ -315,3 +316,30 @@ def test_plain_csv_splitting_agrees_with_the_csv_module(seed):
             return [r for r in rows if r and (r[0].strip() or "".join(r).strip())]
 
         assert kept(split) == kept(list(csv.reader(io.StringIO(text, newline="")))), repr(text)
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_csv_readers_agree(monkeypatch, seed):
+    """The whole-table split, the line-by-line split and the csv module read the same
+    columns, row problems and units from the same text (blank, ragged and padded lines
+    included)."""
+    rng = random.Random(seed)
+    header = "pellet.shape, pellet.radius [mm] ,kinetics.rate_constant [1/s],surface.concentration"
+    cells = ["sphere", " slab ", "", " ", "1.5", "2 mm", "12", "x", "\u00b5"]
+    tables = 0
+    for _ in range(60):
+        lines = [header]
+        for _ in range(rng.randint(0, 8)):
+            width = rng.choice([4] * 12 + [3, 5, 1])
+            lines.append(",".join(rng.choice(cells) for _ in range(width)))
+        text = rng.choice(["\n", "\r\n"]).join(lines) + rng.choice(["", "\n", "\n\n"])
+        raw = text.encode()
+        tables += csv_rows._plain_table(text) is not None
+        answers = [csv_rows.read_csv_columns(raw, 100)]
+        monkeypatch.setattr(csv_rows, "_plain_table", lambda text: None)
+        answers.append(csv_rows.read_csv_columns(raw, 100))
+        monkeypatch.setattr(csv_rows, "_plain_rows", lambda text: None)
+        answers.append(csv_rows.read_csv_columns(raw, 100))
+        monkeypatch.undo()
+        assert answers[0] == answers[1] == answers[2], repr(text)
+    assert tables > 10  # the whole-table split was compared too

@@ -47,30 +47,25 @@ def _build_types():
     for key in sorted(FAST_FIELDS):
         section, name = key.split(".")
         sections.setdefault(section, []).append(name)
-    given, absent = {}, {}
-    for section, names in sections.items():
-        given[section] = msgspec.defstruct(
+    section_types = {
+        section: msgspec.defstruct(
             f"Fast{section.title()}",
             [(name, _value_type(f"{section}.{name}"), MISSING) for name in names],
             forbid_unknown_fields=True, gc=False,
         )
-        # a section the row leaves out: an empty block of a subclass, so that every
-        # row has every section (columns read by one dotted attribute look-up) and
-        # the row can still be rebuilt exactly as sent
-        absent[section] = msgspec.defstruct(f"Absent{section.title()}", [],
-                                            bases=(given[section],), gc=False)
+        for section, names in sections.items()
+    }
     case_type = msgspec.defstruct(
         "FastCase",
-        [(section, kind, msgspec.field(default_factory=absent[section]))
-         for section, kind in given.items()],
+        [(section, Union[kind, _UNSET], MISSING) for section, kind in section_types.items()],
         forbid_unknown_fields=True, gc=False,
     )
     body_type = msgspec.defstruct("FastBatch", [("cases", list[case_type])],
                                   forbid_unknown_fields=True)
-    return sections, absent, msgspec.json.Decoder(body_type)
+    return sections, section_types, msgspec.json.Decoder(body_type)
 
 
-_SECTIONS, _ABSENT, _DECODER = _build_types()
+_SECTIONS, _SECTION_TYPES, _DECODER = _build_types()
 
 
 class DecodedCases:
@@ -84,12 +79,7 @@ class DecodedCases:
 
     def case(self, index: int) -> dict:
         """Row ``index`` as the JSON object it was sent as (absent fields left out)."""
-        row = self._cases[index]
-        case = msgspec.to_builtins(row)
-        for section, absent in _ABSENT.items():
-            if type(getattr(row, section)) is absent:
-                del case[section]
-        return case
+        return msgspec.to_builtins(self._cases[index])
 
 
 def decode_cases(raw: bytes) -> DecodedCases | None:
@@ -110,12 +100,19 @@ def _columns(cases: list) -> tuple[dict[str, list], set[str]]:
     columns: dict[str, list] = {}
     complete = set()
     for section, names in _SECTIONS.items():
-        for name in names:
-            key = f"{section}.{name}"
-            column = list(map(attrgetter(key), cases))
+        try:  # one dotted look-up per row and field: every row gives the section
+            values = {name: list(map(attrgetter(f"{section}.{name}"), cases)) for name in names}
+        except AttributeError:  # some row leaves the section out (it is MISSING there)
+            blocks = list(map(attrgetter(section), cases))
+            if blocks.count(MISSING) == n:
+                continue
+            empty = _SECTION_TYPES[section]()
+            blocks = [empty if b is MISSING else b for b in blocks]
+            values = {name: list(map(attrgetter(name), blocks)) for name in names}
+        for name, column in values.items():
             missing = column.count(MISSING)
             if missing != n:
-                columns[key] = column
+                columns[f"{section}.{name}"] = column
             if missing == 0:
-                complete.add(key)
+                complete.add(f"{section}.{name}")
     return columns, complete

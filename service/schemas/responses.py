@@ -15,6 +15,7 @@ from ..physics.effectiveness import (
     REGIME_WARNINGS, EffectivenessResult, first_order_row_diagnostics, regime_message_template,
 )
 from ..physics.geometry import SHAPES
+from .number_text import format_4g
 from .rules import FIELD_RULES
 
 # The SI unit of every dimensional result field (one table).
@@ -328,8 +329,8 @@ def column_rows_json(group, columns) -> tuple[list[int], list[str]]:
     exponent = SHAPES[group.shape].shape_exponent
     rows = group.rows.tolist()
     out = _rows_writer(exponent, columns.volume is not None)(
-        rows, columns.regime, columns.generalized_modulus.tolist(),
-        columns.effectiveness_factor.tolist(), *texts)
+        rows, columns.regime, format_4g(columns.generalized_modulus),
+        format_4g(columns.effectiveness_factor), *texts)
     # rows with INPUT_OUTSIDE_COMMON_RANGE (rare): their diagnostics one by one
     for position in np.flatnonzero(columns.out_of_range).tolist():
         numbers = [float(a[position]) for a in arrays]
@@ -353,8 +354,9 @@ def _number_texts(values: np.ndarray) -> list[str]:
 @lru_cache(maxsize=16)
 def _rows_writer(shape_exponent: int, with_volume: bool):
     """A function writing the JSON text of many fast rows of one shape, from: the row
-    indices, regimes, generalized moduli and eta (floats, for the regime messages),
-    then the six (eight with volume and area) result columns as number texts.
+    indices, regimes, generalized moduli and eta as the regime messages write them
+    (``%.4g`` texts), then the six (eight with volume and area) result columns as
+    number texts.
 
     It is compiled from the row's text (one f-string per regime inside one list
     comprehension): the fastest way CPython builds many strings of many parts. Only
@@ -398,8 +400,8 @@ _FIELD = re.compile(r"\{(index|eta|phi|length|gen|char|rate|volume|area)\}|%%|%\
 
 def _f_string(text: str) -> str:
     """The source of an f-string giving ``text`` with its {name} fields filled in and
-    its two %.4g (from the regime message template) written as the generalized
-    modulus and eta (names ``generalized``, ``eta_value``)."""
+    its two %.4g (from the regime message template) filled with the texts of the
+    generalized modulus and eta (names ``generalized``, ``eta_value``)."""
     fills = iter(["generalized", "eta_value"])
 
     def field(match):
@@ -407,7 +409,7 @@ def _f_string(text: str) -> str:
         if token == "%%":
             return "%"
         if token == "%.4g":
-            return "{" + next(fills) + ":.4g}"
+            return "{" + next(fills) + "}"
         return token
 
     parts, last = [], 0

@@ -198,17 +198,16 @@ def run_batch(cases: list | Batch) -> tuple[list[str], int]:
     """(JSON text of every row's answer in row order, number of failed rows): fast-path
     groups column-wise, every other row one by one."""
     batch = _as_batch(cases)
-    results: list = [None] * batch.count
+    results = np.empty(batch.count, dtype=object)
     done, rest = _fast_groups(batch)
     for group, columns in done:
         rows, texts = column_rows_json(group, columns)
-        for index, text in zip(rows, texts):
-            results[index] = text
+        results[rows] = texts
     failed = 0
     for index, result in _slow_rows(batch, rest):
         failed += result["status"] != 200
         results[index] = orjson.dumps({"index": index, **result}, option=JSON_OPTIONS).decode()
-    return results, failed
+    return results.tolist(), failed
 
 
 COLUMN_LAYOUT_FIELDS = ("effectiveness_factor", "thiele_modulus", "thiele_length",

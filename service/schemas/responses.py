@@ -308,7 +308,7 @@ def diffusivity_fields(pore) -> dict:
     return out
 
 
-def column_rows_json(group, columns) -> tuple[list[int], list[str]]:
+def column_rows_json(group, columns) -> tuple[np.ndarray, list[str]]:
     """(row indices, JSON text of each row's answer) for a fast-path group.
 
     The same object as ``{"index": i, "status": 200, **core_fields(...)}`` (a test
@@ -341,7 +341,7 @@ def column_rows_json(group, columns) -> tuple[list[int], list[str]]:
                              *(numbers[6:] or (None, None)), diagnostics)
         out[position] = orjson.dumps({"index": rows[position], "status": 200,
                                       **fields}).decode()
-    return rows, out
+    return group.rows, out
 
 
 def _number_texts(values: np.ndarray) -> list[str]:

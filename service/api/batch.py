@@ -271,19 +271,23 @@ def effectiveness_batch():
             return csv_response(_csv_text(run_batch_columns(batch)))
         if layout == "columns":
             return json_response(run_batch_columns(batch))
-        results, failed = run_batch(batch)
-        n = len(results)
-        head = '{"rows":%d,"succeeded":%d,"failed":%d,"results":[' % (n, n - failed, failed)
-        # the body as a list of pieces (the server writes them one after the other): rows
-        # joined and encoded 1000 at a time reuse the memory of the pieces before, where
-        # one piece of tens of MB would be copied twice into fresh pages
-        pieces = [head.encode()]
-        for start in range(0, n, 1000):
-            if start:
-                pieces.append(b",")
-            pieces.append(",".join(results[start:start + 1000]).encode())
-        pieces.append(b"]}")
-        return Response(pieces, mimetype="application/json")
+        return Response(_rows_body(*run_batch(batch)), mimetype="application/json")
+
+
+def _rows_body(results: list[str], failed: int) -> list[bytes]:
+    """The row-layout answer from the rows' JSON texts, as a list of pieces (the server
+    writes them one after the other): rows joined and encoded 1000 at a time reuse the
+    memory of the pieces before, where one piece of tens of MB would be copied twice
+    into fresh pages."""
+    n = len(results)
+    head = '{"rows":%d,"succeeded":%d,"failed":%d,"results":[' % (n, n - failed, failed)
+    pieces = [head.encode()]
+    for start in range(0, n, 1000):
+        if start:
+            pieces.append(b",")
+        pieces.append(",".join(results[start:start + 1000]).encode())
+    pieces.append(b"]}")
+    return pieces
 
 
 def _csv_text(payload: dict) -> str:

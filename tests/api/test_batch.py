@@ -343,3 +343,20 @@ def test_csv_readers_agree(monkeypatch, seed):
         monkeypatch.undo()
         assert answers[0] == answers[1] == answers[2], repr(text)
     assert tables > 10  # the whole-table split was compared too
+
+
+def test_a_batch_of_several_thousand_rows_is_one_valid_answer(client):
+    """The answer is written in pieces of 1000 rows: it must still be one JSON document
+    with every row once, in order."""
+    cases = []
+    for i in range(2345):
+        case = copy.deepcopy(SPHERE_CASE)
+        case["pellet"]["radius"] = f"{0.5 + i / 1000} mm"
+        cases.append(case)
+    cases[1500]["pellet"]["radius"] = "-1 mm"
+    body = client.post("/v1/effectiveness/batch", json={"cases": cases}).get_json()
+    assert (body["rows"], body["succeeded"], body["failed"]) == (2345, 2344, 1)
+    assert [r["index"] for r in body["results"]] == list(range(2345))
+    assert body["results"][1500]["status"] == 422
+    assert body["results"][2344]["effectiveness_factor"] == _single(client, cases[2344])[
+        "effectiveness_factor"]

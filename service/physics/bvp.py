@@ -38,8 +38,12 @@ Method
   appears on the way is lost; if none survives, pseudo-transient continuation returns
   a stable state). Monotone kinetics (f non-decreasing, no exothermic heat effect):
   unique state (``search='unique'``, stable by the comparison principle, eigenvalue -inf).
-  Rings with non-monotone kinetics: one state from the default start (``search='single'``,
-  not an enumeration).
+  Rings (both faces at surface conditions) with non-monotone kinetics or heat effects:
+  shots off the inner face over its slope (sign changes of the mismatch at the outer
+  face, refined near folds and next to shots that empty the wall), plus the states of
+  the slab of half the wall continued in the curvature, plus the default start
+  (``search='scan'``; a state whose minimum lies below ~1e-290 can only come from the
+  last two, see ``_ring_states``).
 * Stability: the leading eigenvalue of the linearized pseudo-transient problem
   du/dt = xi^-m (xi^m u')' - phi^2 F(u) (unit Lewis number, so the Prater relation also
   holds in time) on the finite-volume mesh; stable when it is negative.
@@ -601,19 +605,7 @@ def _scan(prob, zs, s_stop=None):
         if s_stop is not None:
             h = np.minimum(h, s_stop - s)
         h *= active  # finished shots stay put (h = 0 leaves them unchanged)
-        hh = 0.5 * h
-        k1p = g - p * p - m * p / s
-        p2 = p + hh * k1p
-        v2 = v + hh * p
-        k2p = G(v2) - p2 * p2 - m * p2 / (s + hh)
-        p3 = p + hh * k2p
-        v3 = v + hh * p2
-        k3p = G(v3) - p3 * p3 - m * p3 / (s + hh)
-        p4 = p + h * k3p
-        v4 = v + h * p3
-        k4p = G(v4) - p4 * p4 - m * p4 / (s + h)
-        vn = v + h / 6 * (p + 2 * p2 + 2 * p3 + p4)
-        pn = p + h / 6 * (k1p + 2 * k2p + 2 * k3p + k4p)
+        vn, pn = _rk4_step(G, m, s, v, p, g, h)
         sn = s + h
         if s_stop is None:
             done = active & (vn >= top)
@@ -630,6 +622,23 @@ def _scan(prob, zs, s_stop=None):
         s, v, p = sn, vn, pn
         hist.append((s, v))
     return end_s, end_v, end_p, hist
+
+
+def _rk4_step(G, m, s, v, p, g, h):
+    """One classical Runge-Kutta step of v' = p, p' = G(v) - p^2 - m p / s (the shooting
+    equations in v = ln(u - u_eq), s = phi xi) from s to s + h; g = G(v)."""
+    hh = 0.5 * h
+    k1p = g - p * p - m * p / s
+    p2 = p + hh * k1p
+    v2 = v + hh * p
+    k2p = G(v2) - p2 * p2 - m * p2 / (s + hh)
+    p3 = p + hh * k2p
+    v3 = v + hh * p2
+    k3p = G(v3) - p3 * p3 - m * p3 / (s + hh)
+    p4 = p + h * k3p
+    v4 = v + h * p3
+    k4p = G(v4) - p4 * p4 - m * p4 / (s + h)
+    return v + h / 6 * (p + 2 * p2 + 2 * p3 + p4), p + h / 6 * (k1p + 2 * k2p + 2 * k3p + k4p)
 
 
 def _shot_seed(prob, hist, k, k2, w, s_scale, s_end=None):
@@ -796,9 +805,168 @@ def _continue_in_ratio(prob, phi, steps=6):
     return states, "continuation", failures
 
 
+def _ring_shots(prob, phi, points=160):
+    """Seeds for the states of a ring from shots off its inner face.
+
+    Each shot starts at s = phi a (s = phi xi) with u = 1 and a slope q of v = ln(u - u_eq)
+    and is integrated outwards in (v, dv/ds) by the RK4 steps of ``_scan`` to s = phi; the
+    states are the sign changes of v(phi) - ln(1 - u_eq) over q (a shot that empties the
+    wall, u - u_eq < 1e-290, counts as falling short). The slopes run from -1e-4 to past
+    the steepest the surface rate allows; around each turning point of the mismatch that
+    comes near zero the slopes are scanned again finer (two states close to a fold). A
+    state whose minimum lies below ~1e-290 is not resolved by the shots (``_ring_states``
+    adds the other starts for it).
+    """
+    ue = prob.norm.u_eq
+    G = _rate_over_excess(prob)
+    top = math.log(1.0 - ue)
+    g_max = float(np.max(G(np.log(np.linspace(1e-6, 1.0, 200) * (1.0 - ue)))))
+    qs = -np.geomspace(1e-4, 4.0 * math.sqrt(max(g_max, 1e-12)) + 4.0, points)
+    d, S, V = _ring_fire(prob, phi, qs, G, top)
+    seeds = _ring_seeds(d, S, V, phi, ue, top)
+    for k in range(points - 1):
+        if np.isfinite(d[k]) != np.isfinite(d[k + 1]) and d[k] * d[k + 1] < 0:
+            # a state between a shot that reaches the far face and one that empties the
+            # wall: its minimum is small; the slopes in between, again, finer
+            fine = np.linspace(qs[k], qs[k + 1], 65)
+            seeds += _ring_seeds(*_ring_fire(prob, phi, fine, G, top), phi, ue, top)
+        if k == 0 or not np.all(np.isfinite(d[k - 1:k + 2])):
+            continue
+        turning = (d[k] - d[k - 1]) * (d[k + 1] - d[k]) < 0
+        step = max(abs(d[k] - d[k - 1]), abs(d[k + 1] - d[k]))
+        if turning and abs(d[k]) <= 10.0 * step:
+            fine = np.linspace(qs[k - 1], qs[k + 1], 33)
+            seeds += _ring_seeds(*_ring_fire(prob, phi, fine, G, top), phi, ue, top)
+    return seeds
+
+
+def _ring_fire(prob, phi, qs, G, top):
+    """The shots of ``_ring_shots`` for the slopes qs: (mismatch, s and v histories)."""
+    m, points = prob.m, len(qs)
+    floor = math.log(1e-290)
+    s = np.full(points, phi * prob.a)
+    v = np.full(points, top)
+    p = np.asarray(qs, dtype=float).copy()
+    active = np.ones(points, bool)
+    end_v = np.full(points, np.nan)
+    hist = [(s.copy(), v.copy())]
+    for step in range(40000):
+        if step % 16 == 0:
+            prob.check_time()
+            if not active.any():
+                break
+        rising = p > 0
+        with np.errstate(all="ignore"):  # finished shots may hold extreme values; they stay put
+            g = G(v)
+            h = np.minimum(_SCAN_STEP / (1.0 + np.abs(p) + np.sqrt(g)), phi - s)
+            vn, pn = _rk4_step(G, m, s, v, p, g, h)
+            v, p = np.where(active, vn, v), np.where(active, pn, p)
+        s = np.where(active, s + h, s)
+        # a step that overflowed: the shot was shooting up (or down) past any state
+        lost = active & ~(np.isfinite(v) & np.isfinite(p) & np.isfinite(s))
+        emptied = active & ((lost & ~rising) | (~lost & (v < floor)))
+        high = active & ((lost & rising) | (~lost & (v > top + math.log(4.0))))
+        done = active & ~lost & ~emptied & ~high & (s >= phi * (1 - 1e-14))
+        end_v[emptied] = -np.inf
+        end_v[high] = np.inf
+        end_v[done] = v[done]
+        active &= ~(emptied | high | done)
+        hist.append((s.copy(), v.copy()))
+    S = np.array([h_[0] for h_ in hist])
+    V = np.array([h_[1] for h_ in hist])
+    return end_v - top, S, V
+
+
+def _ring_seeds(d, S, V, phi, ue, top):
+    """A seed u(xi) for every sign change of the mismatch d between neighbouring shots
+    (their profiles blended by the linear interpolation of the root)."""
+    seeds = []
+    for k in range(len(d) - 1):
+        if np.isfinite(d[k]) and np.isfinite(d[k + 1]) and d[k] * d[k + 1] <= 0:
+            w = d[k] / (d[k] - d[k + 1]) if d[k] != d[k + 1] else 0.0
+        elif np.isfinite(d[k]) != np.isfinite(d[k + 1]) and d[k] * d[k + 1] < 0:
+            w = 0.0 if np.isfinite(d[k]) else 1.0  # next to a shot that empties: the other
+        else:
+            continue
+
+        def seed(xi, k=k, w=w):
+            x = phi * xi
+            if w in (0.0, 1.0):
+                j = k if w == 0.0 else k + 1
+                v = np.interp(x, S[:, j], V[:, j])
+            else:
+                v = (1 - w) * np.interp(x, S[:, k], V[:, k]) + w * np.interp(x, S[:, k + 1],
+                                                                            V[:, k + 1])
+            return ue + np.exp(np.minimum(v, top))
+
+        seeds.append(seed)
+    return seeds
+
+
+def _ring_states(prob, steps=4):
+    """Steady states of a ring (both faces at surface conditions) with kinetics that may
+    have several, from three kinds of start, each polished by Newton on the ring:
+
+    * shots off the inner face (``_ring_shots``), which find every state whose minimum
+      concentration they resolve;
+    * the states of the slab of half-thickness w = (1 - a)/2 (enumerated by the shooting
+      scan) continued in the curvature: with the curvature term scaled by lam,
+      (xi^lam u')' = xi^lam phi^2 F(u) on [a, 1] is that slab at lam = 0 and the ring at
+      lam = 1, taken in ``steps`` steps, halved where Newton fails;
+    * the default start.
+
+    A state missed by all three is possible only when its minimum lies below ~1e-290 and
+    no slab branch leads to it; a slab branch lost on the way counts as a failure
+    (SOLVER_PARTIAL).
+    """
+    a = prob.a
+    phi = math.sqrt(prob.phi2)
+    w, middle = 0.5 * (1.0 - a), 0.5 * (1.0 + a)
+    slab = _Problem(0, 0.0, prob.phi2 * w * w, prob.norm, prob.beta, prob.gamma,
+                    deadline=prob.deadline)
+    slab_states, _, failures = _find_states(slab, math.sqrt(slab.phi2))
+    states = []
+    for seed in _ring_shots(prob, phi):
+        prob.check_time()
+        st = _solve_on_meshes(prob, seed)
+        if st is not None and not any(_same(st, o) for o in states):
+            states.append(st)
+    try:
+        for st in slab_states:
+            prob.m = 0.0
+            sol = _solve_on_meshes(prob, lambda x, st=st: np.interp(
+                np.abs(x - middle) / w, st["xi"], st["u"]), allow_ptc=False)
+            lam, step = 0.0, 1.0 / steps
+            while sol is not None and lam < 1.0:
+                prob.check_time()
+                prob.m = min(1.0, lam + step)
+                nxt = _solve_on_meshes(prob, lambda x, sol=sol: np.interp(x, sol["xi"], sol["u"]),
+                                       allow_ptc=False)
+                if nxt is not None:
+                    sol, lam = nxt, prob.m
+                elif step > 1.0 / (16 * steps):
+                    step *= 0.5
+                else:
+                    sol = None
+            if sol is None:
+                failures += 1
+            elif not any(_same(sol, o) for o in states):
+                states.append(sol)
+        prob.m = 1
+        st = _solve_on_meshes(prob, _seed_default(prob))
+        if st is not None and not any(_same(st, o) for o in states):
+            states.append(st)
+        if st is None and not states:
+            failures += 1
+    finally:
+        prob.m = 1
+    return sorted(states, key=lambda st: st["eta"]), "scan", failures
+
+
 def _same(s1, s2):
-    c1 = np.interp(0.5, s1["xi"], s1["u"]), s1["u"][0]
-    c2 = np.interp(0.5, s2["xi"], s2["u"]), s2["u"][0]
+    middle = 0.5 * (s1["xi"][0] + 1.0)  # the wall's middle (0.5 for a full pellet)
+    c1 = np.interp(middle, s1["xi"], s1["u"]), s1["u"][0]
+    c2 = np.interp(middle, s2["xi"], s2["u"]), s2["u"][0]
     return (abs(s1["eta"] - s2["eta"]) <= 1e-6 * max(abs(s1["eta"]), 1e-300)
             and all(abs(x - y) <= 1e-6 * max(abs(x), abs(y), 1e-30) for x, y in zip(c1, c2)))
 
@@ -903,10 +1071,12 @@ def solve_reaction_diffusion(rate_law, shape_exponent, length, effective_diffusi
             Phi = generalized_from_thiele(phi, m, norm)
             if Phi > _ASYMPTOTIC_MODULUS:
                 return _asymptotic(prob, phi, Phi, t0)
-        if monotone or a > 0:  # rings: one state from the default start (no enumeration)
+        if monotone:
             st = _solve_on_meshes(prob, _seed_default(prob))
-            search = "unique" if monotone else "single"
+            search = "unique"
             states, failures = ([st] if st else []), (0 if st else 1)
+        elif a > 0:
+            states, search, failures = _ring_states(prob)
         else:
             states, search, failures = _find_states(prob, phi)
     except _Budget:

@@ -3,8 +3,9 @@ the external film; every steady state through ``bvp.solve_reaction_diffusion``.
 
 Which solution serves which case
 --------------------------------
-* 1-D shapes (slab, infinite cylinder, sphere) and the infinite ring (isothermal, no
-  film): the 1-D solver, every steady state, with heat and film as given.
+* 1-D shapes (slab, infinite cylinder, sphere): the 1-D solver, every steady state, with
+  heat and film as given. The infinite ring without a film (both faces at surface
+  conditions, with or without heat effects): the 1-D solver on the annulus.
 * Finite cylinder and finite ring, isothermal, no film: the 2-D (r, z) finite-volume
   solution of ``cross_section`` (one steady state).
 * Any other combination (extrudates, custom shapes, 2-D shapes with heat or film): the
@@ -152,7 +153,7 @@ def solve_general(case: Case, geometry: PelletGeometry, time_budget: float) -> G
         solution = _finite_cylinder(case, geometry, rate_law, c_ref, de, generalized)
         if solution is not None:
             return solution
-    approximated = m is None and not (ring and th is None and fi is None)
+    approximated = m is None and not (ring and fi is None)
     if ring and not approximated:
         m, length = 1, case.dimensions["outer_radius"]
         inner = case.dimensions["inner_radius"] / case.dimensions["outer_radius"]

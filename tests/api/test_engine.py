@@ -203,3 +203,27 @@ def test_a_batch_reports_budget_exhaustion_per_row(app):
                        json={"cases": [numerical, first_order, numerical]}).get_json()
     assert [r["status"] for r in body["results"]] == [503, 200, 503]
     assert "time budget" in body["results"][0]["errors"][0]["message"]
+
+
+def test_exothermic_ring_reports_every_steady_state(client):
+    """A ring (hollow cylinder, both faces at surface conditions) with heat effects is
+    solved on its annulus, not estimated, and every steady state comes back with the
+    caution. Reference: solve_ivp (DOP853) shooting from the inner face of
+    (x u')' = phi^2 x u exp(gamma beta (1 - u)/(1 + beta (1 - u))) (Weisz & Hicks 1962
+    kinetics, Prater relation), u(a) = u(1) = 1; the states are the roots over the slope."""
+    from tests.physics.test_bvp import ring_states, thermal_F
+
+    outer, inner, k, de = 2.5e-3, 0.5e-3, 0.18, 1e-6
+    case = {"pellet": {"shape": "hollow_cylinder", "outer_radius": outer, "inner_radius": inner},
+            "kinetics": {"model": "power_law", "order": 1, "rate_constant": k},
+            "transport": {"effective_diffusivity": de}, "surface": {"concentration": 40},
+            "thermal": {"prater_number": 0.3, "arrhenius_number": 20}}
+    body = client.post("/v1/effectiveness", json=case).get_json()
+    ref = ring_states(thermal_F, inner / outer, outer * math.sqrt(k / de))
+    assert len(ref) == 3
+    states = body["steady_states"]
+    assert [s["effectiveness_factor"] for s in states] == pytest.approx(ref, rel=1e-5)
+    assert [s["stable"] for s in states] == [True, False, True]
+    codes = [w["code"] for w in body["warnings"]]
+    assert "MULTIPLE_STEADY_STATES" in codes and "GENERALIZED_MODULUS_ESTIMATE" not in codes
+    assert body["effectiveness_factor"] == pytest.approx(ref[2], rel=1e-5)  # stable, largest

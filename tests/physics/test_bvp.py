@@ -227,6 +227,67 @@ def test_ring_first_order_matches_bessel_solution(a, phi):
     assert res.effectiveness_factor == pytest.approx(ref, rel=1e-6)
 
 
+def ring_states(F, a, phi, points=400):
+    """Every steady state of (x u')' = phi^2 x F(u) on x in [a, 1], u(a) = u(1) = 1, by
+    plain shooting from the inner face: solve_ivp (DOP853, rtol 1e-11) from u'(a) = q to
+    x = 1; the states are the roots of u(1; q) = 1 (scan of q, then brentq).
+    Returns [eta] with eta = 2 (u'(1) - a u'(a)) / (phi^2 (1 - a^2) F(1)), the mean rate
+    over the wall's cross-section relative to the surface rate (the ODE integrated)."""
+
+    def emptied(x, y):  # the shot used up the reactant: too steep a start, u(1) < 1
+        return y[0] - 1e-9
+
+    emptied.terminal = True
+
+    def shot(q):
+        sol = integrate.solve_ivp(lambda x, y: [y[1], phi**2 * F(y[0]) - y[1] / x], [a, 1.0],
+                                  [1.0, q], method="DOP853", rtol=1e-11, atol=1e-13,
+                                  events=emptied)
+        if sol.status == 1:
+            return -1.0, math.nan
+        return sol.y[0, -1] - 1.0, sol.y[1, -1]
+
+    qs = -np.linspace(1e-6, 3.0 * phi * math.sqrt(F(1.0)) * 2, points)
+    d = np.array([shot(q)[0] for q in qs])
+    etas = []
+    for k in np.nonzero(d[:-1] * d[1:] < 0)[0]:
+        q = optimize.brentq(lambda q: shot(q)[0], qs[k], qs[k + 1], xtol=1e-14, rtol=1e-14)
+        etas.append(2 * (shot(q)[1] - a * q) / (phi**2 * (1 - a * a) * F(1.0)))
+    return sorted(etas)
+
+
+@pytest.mark.parametrize("a, phi, count", [(0.2, 1.75, 3), (0.5, 3.0, 3), (0.2, 1.5, 1)])
+def test_ring_langmuir_hinshelwood_every_steady_state(a, phi, count):
+    # A ring (both faces at c_s) with strongly adsorbing LH kinetics, r = k c/(1 + K c)^2,
+    # K c_s = 20, has several steady states like the full shapes (Aris 1975, Ch. 4, isothermal
+    # multiplicity for non-monotone kinetics). Reference: plain solve_ivp shooting from the
+    # inner face (ring_states above); states, count and stability (outer branches stable).
+    K = 20.0
+    F = lambda u: u * (1 + K) ** 2 / (1 + K * u) ** 2
+    ref = ring_states(F, a, phi)
+    assert len(ref) == count
+    res = bvp.solve_reaction_diffusion(kinetics.LangmuirHinshelwood(phi**2 * (1 + K) ** 2, K, 2), 1,
+                                       1.0, 1.0, 1.0, inner_radius_fraction=a)
+    assert res.success and res.search == "scan"
+    assert [s.effectiveness_factor for s in res.steady_states] == pytest.approx(ref, rel=1e-5)
+    if count == 3:
+        assert [s.stable for s in res.steady_states] == [True, False, True]
+
+
+def test_ring_weisz_hicks_three_steady_states():
+    # An exothermic ring (Weisz & Hicks (1962) kinetics, gamma = 20, beta = 0.3; both faces at
+    # surface conditions so the Prater relation holds): three states inside the S-region.
+    # Reference: solve_ivp shooting from the inner face.
+    a, phi = 0.3, 1.2
+    ref = ring_states(thermal_F, a, phi)
+    assert len(ref) == 3
+    res = bvp.solve_reaction_diffusion(kinetics.PowerLaw(phi**2, 1), 1, 1.0, 1.0, 1.0,
+                                       inner_radius_fraction=a, **WH)
+    assert res.success and len(res.steady_states) == 3
+    assert [s.effectiveness_factor for s in res.steady_states] == pytest.approx(ref, rel=1e-5)
+    assert [s.stable for s in res.steady_states] == [True, False, True]
+
+
 # ----------------------------------------------------------------- result object contract
 def test_budget_exceeded_returns_quickly():
     t0 = time.monotonic()

@@ -69,6 +69,15 @@ def thermal(phi):
     return len(res.steady_states)
 
 
+def thermal_ring(phi):
+    law = kinetics.PowerLaw(phi * phi, 1.0)
+    res = bvp.solve_reaction_diffusion(law, 1, 1.0, 1.0, 1.0, prater_number=0.3,
+                                       arrhenius_number=20.0, temperature=600.0,
+                                       inner_radius_fraction=0.3)
+    assert res.success, res.message
+    return len(res.steady_states)
+
+
 def main():
     for phi in (1.0, 5.0):  # warm-up and a consistency check of the two solvers
         a, b = ours(phi), scipy_direct(phi)
@@ -80,6 +89,9 @@ def main():
     print(f"ratio to a direct scipy solve_bvp on the same problem: {t_ours / t_scipy:.2f} "
           f"(solve_bvp median {t_scipy * 1e3:.2f} ms)")
     print(f"non-isothermal steady-state search (sphere, gamma 20, beta 0.3): median {t_thermal * 1e3:.2f} ms")
+    t_ring = _median_time(thermal_ring, np.linspace(0.8, 1.6, 8))
+    print(f"non-isothermal steady-state search (ring a = 0.3, gamma 20, beta 0.3): median "
+          f"{t_ring * 1e3:.2f} ms")
     shapes()
 
 

@@ -822,26 +822,31 @@ def _ring_shots(prob, phi, points=160):
     top = math.log(1.0 - ue)
     g_max = float(np.max(G(np.log(np.linspace(1e-6, 1.0, 200) * (1.0 - ue)))))
     qs = -np.geomspace(1e-4, 4.0 * math.sqrt(max(g_max, 1e-12)) + 4.0, points)
-    d, S, V = _ring_fire(prob, phi, qs, G, top)
+    d, S, V = _ring_fire(prob, phi, qs, G, top, g_max)
     seeds = _ring_seeds(d, S, V, phi, ue, top)
     for k in range(points - 1):
         if np.isfinite(d[k]) != np.isfinite(d[k + 1]) and d[k] * d[k + 1] < 0:
             # a state between a shot that reaches the far face and one that empties the
             # wall: its minimum is small; the slopes in between, again, finer
             fine = np.linspace(qs[k], qs[k + 1], 65)
-            seeds += _ring_seeds(*_ring_fire(prob, phi, fine, G, top), phi, ue, top)
+            seeds += _ring_seeds(*_ring_fire(prob, phi, fine, G, top, g_max), phi, ue, top)
         if k == 0 or not np.all(np.isfinite(d[k - 1:k + 2])):
             continue
         turning = (d[k] - d[k - 1]) * (d[k + 1] - d[k]) < 0
         step = max(abs(d[k] - d[k - 1]), abs(d[k + 1] - d[k]))
         if turning and abs(d[k]) <= 10.0 * step:
             fine = np.linspace(qs[k - 1], qs[k + 1], 33)
-            seeds += _ring_seeds(*_ring_fire(prob, phi, fine, G, top), phi, ue, top)
+            seeds += _ring_seeds(*_ring_fire(prob, phi, fine, G, top, g_max), phi, ue, top)
     return seeds
 
 
-def _ring_fire(prob, phi, qs, G, top):
-    """The shots of ``_ring_shots`` for the slopes qs: (mismatch, s and v histories)."""
+def _ring_fire(prob, phi, qs, G, top, g_max):
+    """The shots of ``_ring_shots`` for the slopes qs: (mismatch, s and v histories).
+
+    A shot below the surface value whose slope p is steeper than sqrt(2 g_max) + m/s + 1
+    (g_max bounds G) can only steepen (p' = G - p^2 - m p/s < 0): it empties the wall or
+    ends below the surface value, and is counted as emptied at once (its last steps
+    would otherwise shrink geometrically)."""
     m, points = prob.m, len(qs)
     floor = math.log(1e-290)
     s = np.full(points, phi * prob.a)
@@ -864,7 +869,9 @@ def _ring_fire(prob, phi, qs, G, top):
         s = np.where(active, s + h, s)
         # a step that overflowed: the shot was shooting up (or down) past any state
         lost = active & ~(np.isfinite(v) & np.isfinite(p) & np.isfinite(s))
-        emptied = active & ((lost & ~rising) | (~lost & (v < floor)))
+        with np.errstate(all="ignore"):
+            doomed = ~lost & (v < top) & (p < -(math.sqrt(2.0 * g_max) + m / s + 1.0))
+        emptied = active & ((lost & ~rising) | (~lost & (v < floor)) | doomed)
         high = active & ((lost & rising) | (~lost & (v > top + math.log(4.0))))
         done = active & ~lost & ~emptied & ~high & (s >= phi * (1 - 1e-14))
         end_v[emptied] = -np.inf

@@ -342,7 +342,7 @@ def run_all(server: Gunicorn, chosen: list[Scenario], args, work: Path) -> bool:
             print(f"  SKIPPED {scenario.name}: warm-up answered {status}: {body[:300]!r}")
     pids = server.worker_pids()
     before = {pid: rss_kib(pid) for pid in pids}
-    print(f"worker RSS after warm-up [MiB]: "
+    print("worker RSS after warm-up [MiB]: "
           + ", ".join(f"{pid}: {kib / 1024:.1f}" for pid, kib in before.items()))
     print("\nworker ms: CPU time of the gunicorn workers per request (less sensitive to other "
           "load on the machine than req/s);\nwrk ms: the load generator's CPU per request.")

@@ -174,7 +174,6 @@ def _fd_finite_cylinder(phi, ld, n):
 
     nz = int(round(n * ld))
     h = 1.0 / n
-    r = np.arange(n) * h          # unknowns r = 0 .. 1 - h
     nzu = nz                      # unknowns z = 0 .. ld - h
     idx = np.arange(n * nzu).reshape(n, nzu)
     rows, cols, vals = [], [], []
